@@ -1,0 +1,50 @@
+//! `dwell`: the command line. Parses arguments, calls a library function, prints, exits.
+//!
+//! Exit codes: 0 success; 1 the run failed for a reason other than the input (for example an
+//! output folder could not be written); 2 bad input (a model, weather file, variant or option
+//! the user must fix). Errors are printed once, on standard error, prefixed `error:`.
+
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+mod cmd;
+mod exit;
+
+/// Model a small building as a thermal RC network and integrate it exactly.
+#[derive(Parser)]
+#[command(name = "dwell", version, about, long_about = None)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Validate a model and print its heat-loss summary
+    Check(cmd::check::CheckArgs),
+    /// Print the state space (A, B) of a model
+    Network(cmd::network::NetworkArgs),
+    /// Print the JSON Schema of the model file
+    Schema(cmd::schema::SchemaArgs),
+    /// Read, check, summarise and synthesise weather files
+    #[command(subcommand)]
+    Weather(cmd::weather::WeatherCommand),
+    /// Simulate a model over a period and write hourly results
+    Simulate(cmd::simulate::SimulateArgs),
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Check(a) => cmd::check::run(a),
+        Command::Network(a) => cmd::network::run(a),
+        Command::Schema(a) => cmd::schema::run(a),
+        Command::Weather(a) => cmd::weather::run(a),
+        Command::Simulate(a) => cmd::simulate::run(a),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) => exit::report(&e),
+    }
+}

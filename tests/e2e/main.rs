@@ -1,0 +1,3 @@
+//! End-to-end tests of the `dwell` binary, compiled as one test binary.
+
+mod util;
