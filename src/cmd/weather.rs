@@ -269,8 +269,17 @@ fn run_sun(a: SunArgs) -> anyhow::Result<()> {
     let mut s = String::with_capacity(sun.len() * 80);
     s.push_str(&format!(
         "# sun for {} at latitude {} longitude {} elevation {} m; plane tilt {} azimuth {} \
-         (clockwise from north); sky {:?}; albedo {}\n",
-        w.source, site.latitude_deg, site.longitude_deg, site.elevation_m, a.tilt, a.azimuth, a.sky,
+         (clockwise from north); sky {}; albedo {}\n",
+        w.source,
+        site.latitude_deg,
+        site.longitude_deg,
+        site.elevation_m,
+        a.tilt,
+        a.azimuth,
+        match a.sky {
+            SkyModel::Isotropic => "isotropic",
+            SkyModel::HayDavies => "hay-davies",
+        },
         site.albedo
     ));
     s.push_str("# zenith and azimuth at the middle of the hour ending at the stamp; irradiance = hour means\n");

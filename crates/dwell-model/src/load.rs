@@ -61,7 +61,7 @@ fn explain(msg: &str) -> String {
         if let Some(rest) = msg.strip_prefix(head) {
             let Some(end) = rest.find('`') else { break };
             let word = &rest[..end];
-            let expected: Vec<&str> = rest[end..].split('`').skip(1).step_by(2).collect();
+            let expected: Vec<&str> = rest[end + 1..].split('`').skip(1).step_by(2).collect();
             let mut out = format!("unknown {what} `{word}`");
             if let Some(s) = suggest(word, expected.iter().copied()) {
                 out.push_str(&format!("; did you mean `{s}`?"));

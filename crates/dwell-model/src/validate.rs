@@ -71,14 +71,31 @@ pub fn validate(m: &ModelFile) -> Vec<Problem> {
     let schedules = ids(&mut c, "schedules", m.schedules.iter().map(|x| x.id.as_str()));
     let boundaries = ids(&mut c, "boundaries", m.boundaries.iter().map(|x| x.id.as_str()));
     let raw_nodes = ids(&mut c, "network.nodes", m.network.nodes.iter().map(|x| x.id.as_str()));
-    ids(&mut c, "opaque", m.opaque.iter().map(|x| x.id.as_str()));
-    ids(&mut c, "internal_mass", m.internal_mass.iter().map(|x| x.id.as_str()));
-    ids(&mut c, "openings", m.openings.iter().map(|x| x.id.as_str()));
-    ids(&mut c, "airflows", m.airflows.iter().map(|x| x.id.as_str()));
-    ids(&mut c, "gains", m.gains.iter().map(|x| x.id.as_str()));
-    ids(&mut c, "heaters", m.heaters.iter().map(|x| x.id.as_str()));
-    ids(&mut c, "network.links", m.network.links.iter().map(|x| x.id.as_str()));
-    ids(&mut c, "network.heat_inputs", m.network.heat_inputs.iter().map(|x| x.id.as_str()));
+    // Elements, openings, airflows, gains, heaters and raw links and heat inputs share one
+    // namespace: their ids name network nodes and inputs in every output.
+    let mut element_ids: HashMap<&str, String> = HashMap::new();
+    let lists: [(&str, Vec<&str>); 8] = [
+        ("opaque", m.opaque.iter().map(|x| x.id.as_str()).collect()),
+        ("internal_mass", m.internal_mass.iter().map(|x| x.id.as_str()).collect()),
+        ("openings", m.openings.iter().map(|x| x.id.as_str()).collect()),
+        ("airflows", m.airflows.iter().map(|x| x.id.as_str()).collect()),
+        ("gains", m.gains.iter().map(|x| x.id.as_str()).collect()),
+        ("heaters", m.heaters.iter().map(|x| x.id.as_str()).collect()),
+        ("network.links", m.network.links.iter().map(|x| x.id.as_str()).collect()),
+        ("network.heat_inputs", m.network.heat_inputs.iter().map(|x| x.id.as_str()).collect()),
+    ];
+    for (list, items) in &lists {
+        for (i, id) in items.iter().enumerate() {
+            let here = format!("$.{list}[{i}]");
+            if id.trim().is_empty() {
+                c.push(format!("{here}.id"), "the id is empty; give every item a name");
+            } else if let Some(first) = element_ids.get(id) {
+                c.push(format!("{here}.id"), format!("duplicate id `{id}` (first used at {first}); element, opening, airflow, gain, heater and link ids must all differ"));
+            } else {
+                element_ids.insert(id, here);
+            }
+        }
+    }
 
     // Names that may stand on the far side of an element: one namespace.
     let mut sides: HashSet<&str> = HashSet::from([OUTDOOR, GROUND]);
