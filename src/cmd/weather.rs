@@ -14,15 +14,15 @@ use dwell_weather::{
 
 use crate::exit::bad_input;
 
-/// Weather subcommands.
+/// Weather subcommands (boxed: their argument structs are large).
 #[derive(clap::Subcommand)]
 pub enum WeatherCommand {
     /// Print monthly means, heating degree-days, a design temperature and solar totals
-    Summary(SummaryArgs),
+    Summary(Box<SummaryArgs>),
     /// Write the sun's position and the irradiance on one plane, hour by hour, as CSV
-    Sun(SunArgs),
+    Sun(Box<SunArgs>),
     /// Write a reproducible year of weather for an invented climate
-    Synth(SynthArgs),
+    Synth(Box<SynthArgs>),
 }
 
 /// How to read a weather file that is not in dwell's own column names or units.
@@ -142,16 +142,16 @@ pub struct SunArgs {
     /// Elevation (m); default: the file's `# elevation_m:` line, else 0
     #[arg(long, value_name = "M", allow_negative_numbers = true)]
     elevation: Option<f64>,
-    /// Ground reflectance, 0 … 1
-    #[arg(long, value_name = "FRACTION", default_value_t = DEFAULT_ALBEDO)]
-    albedo: f64,
+    /// Ground reflectance, 0 … 1; default: the file's `# albedo:` line, else 0.2
+    #[arg(long, value_name = "FRACTION")]
+    albedo: Option<f64>,
     /// Tilt of the plane from horizontal (degrees; 0 = horizontal, 90 = vertical)
     #[arg(long, value_name = "DEG")]
     tilt: f64,
     /// Azimuth of the plane's outward normal, clockwise from north (degrees; 180 = south)
     #[arg(long, value_name = "DEG")]
     azimuth: f64,
-    /// Sky diffuse model: isotropic or hay-davies
+    /// Sky diffuse model: isotropic, hay-davies or perez
     #[arg(long, value_name = "MODEL", default_value = "hay-davies")]
     sky: SkyModel,
     /// Write the CSV to this file instead of standard output
@@ -168,7 +168,12 @@ pub struct SynthArgs {
     #[arg(long, default_value = "unnamed invented climate")]
     name: String,
     /// Annual mean air temperature (°C)
-    #[arg(long, value_name = "°C", default_value_t = 10.0, allow_negative_numbers = true)]
+    #[arg(
+        long,
+        value_name = "°C",
+        default_value_t = 10.0,
+        allow_negative_numbers = true
+    )]
     mean: f64,
     /// Seasonal swing, peak to peak (K)
     #[arg(long, value_name = "K", default_value_t = 12.0)]
@@ -186,16 +191,36 @@ pub struct SynthArgs {
     #[arg(long, value_name = "FRACTION", default_value_t = 0.6)]
     cloudiness: f64,
     /// Latitude, north positive (degrees, −66 … 66)
-    #[arg(long, value_name = "DEG", default_value_t = 52.0, allow_negative_numbers = true)]
+    #[arg(
+        long,
+        value_name = "DEG",
+        default_value_t = 52.0,
+        allow_negative_numbers = true
+    )]
     lat: f64,
     /// Longitude, east positive (degrees)
-    #[arg(long, value_name = "DEG", default_value_t = 0.0, allow_negative_numbers = true)]
+    #[arg(
+        long,
+        value_name = "DEG",
+        default_value_t = 0.0,
+        allow_negative_numbers = true
+    )]
     lon: f64,
     /// Elevation (m)
-    #[arg(long, value_name = "M", default_value_t = 50.0, allow_negative_numbers = true)]
+    #[arg(
+        long,
+        value_name = "M",
+        default_value_t = 50.0,
+        allow_negative_numbers = true
+    )]
     elevation: f64,
     /// Offset of local standard time from UTC (hours, quarter hours allowed)
-    #[arg(long, value_name = "HOURS", default_value_t = 0.0, allow_negative_numbers = true)]
+    #[arg(
+        long,
+        value_name = "HOURS",
+        default_value_t = 0.0,
+        allow_negative_numbers = true
+    )]
     utc_offset: f64,
     /// Calendar year
     #[arg(long, default_value_t = 2025)]
@@ -214,16 +239,19 @@ pub struct SynthArgs {
 /// Runs the command.
 pub fn run(cmd: WeatherCommand) -> anyhow::Result<()> {
     match cmd {
-        WeatherCommand::Summary(a) => run_summary(a),
-        WeatherCommand::Sun(a) => run_sun(a),
-        WeatherCommand::Synth(a) => run_synth(a),
+        WeatherCommand::Summary(a) => run_summary(*a),
+        WeatherCommand::Sun(a) => run_sun(*a),
+        WeatherCommand::Synth(a) => run_synth(*a),
     }
 }
 
 fn run_summary(a: SummaryArgs) -> anyhow::Result<()> {
     let w = a.read.read(a.file.as_deref())?;
     if !a.hdd_base.is_finite() || !(-20.0..=30.0).contains(&a.hdd_base) {
-        return Err(bad_input(format!("--hdd-base {} is outside -20 … 30 °C", a.hdd_base)));
+        return Err(bad_input(format!(
+            "--hdd-base {} is outside -20 … 30 °C",
+            a.hdd_base
+        )));
     }
     let s = summary::summarize(&w, a.hdd_base);
     let text = if a.json {
@@ -250,8 +278,12 @@ fn run_sun(a: SunArgs) -> anyhow::Result<()> {
             w.source
         )));
     };
-    let elevation = a.elevation.or(from_file.map(|s| s.elevation_m)).unwrap_or(0.0);
-    let site = Site::new(lat, lon, elevation, a.albedo).map_err(bad_input)?;
+    let elevation = a
+        .elevation
+        .or(from_file.map(|s| s.elevation_m))
+        .unwrap_or(0.0);
+    let albedo = a.albedo.or(from_file.map(|s| s.albedo)).unwrap_or(DEFAULT_ALBEDO);
+    let site = Site::new(lat, lon, elevation, albedo).map_err(bad_input)?;
     if !a.tilt.is_finite() || !(0.0..=180.0).contains(&a.tilt) {
         return Err(bad_input(format!(
             "--tilt {} is outside 0 … 180 degrees (0 horizontal facing up, 90 vertical)",
@@ -279,6 +311,7 @@ fn run_sun(a: SunArgs) -> anyhow::Result<()> {
         match a.sky {
             SkyModel::Isotropic => "isotropic",
             SkyModel::HayDavies => "hay-davies",
+            SkyModel::Perez => "perez",
         },
         site.albedo
     ));
