@@ -135,6 +135,10 @@ pub struct House {
     pub constructions: Vec<ConstructionU>,
     /// Index of each heater's input.
     pub heater_inputs: Vec<usize>,
+    /// Where the sun of each solar input lands: `(input, group, m²)`; group `windows` is
+    /// transmitted by glazing, the others are absorbed on the outer surface of that group's
+    /// opaque elements (most of which leaves again through the outside film).
+    pub solar_targets: Vec<(usize, &'static str, f64)>,
 }
 
 enum Piece {
@@ -209,6 +213,7 @@ struct Compiler<'a> {
     losses: Vec<ElementLoss>,
     /// Inside surface node of each element id (for heaters `into` an element).
     inside_surface: BTreeMap<String, NodeId>,
+    solar_targets: Vec<(usize, &'static str, f64)>,
 }
 
 impl<'a> Compiler<'a> {
@@ -332,6 +337,7 @@ pub fn compile(m: &ModelFile, file: &str) -> Result<House, ModelError> {
         problems: Vec::new(),
         losses: Vec::new(),
         inside_surface: BTreeMap::new(),
+        solar_targets: Vec::new(),
     };
     c.outdoor(); // always input 0
     for z in &m.zones {
@@ -391,6 +397,7 @@ pub fn compile(m: &ModelFile, file: &str) -> Result<House, ModelError> {
         losses: c.losses,
         constructions,
         heater_inputs,
+        solar_targets: c.solar_targets,
     })
 }
 
@@ -522,6 +529,7 @@ fn compile_opaque(c: &mut Compiler) {
             if side == OUTDOOR && e.solar_absorptance > 0.0 {
                 let inp = c.solar(e.tilt_deg, e.azimuth_deg);
                 c.b.inject(outside, inp, e.solar_absorptance * e.area_m2);
+                c.solar_targets.push((inp.0, group, e.solar_absorptance * e.area_m2));
             }
             c.losses.push(ElementLoss {
                 id: e.id.clone(),
@@ -579,6 +587,7 @@ fn compile_openings(c: &mut Compiler) {
             if o.other_side == OUTDOOR && aperture > 0.0 {
                 let s = c.solar(o.tilt_deg, o.azimuth_deg);
                 c.b.inject(air, s, aperture);
+                c.solar_targets.push((s.0, "windows", aperture));
             }
         }
         let internal = c.zone_index.contains_key(o.other_side.as_str());

@@ -114,5 +114,8 @@ pub(crate) fn reduce(b: &NetworkBuilder) -> Result<Network, NetworkError> {
         node_temperature,
         boundary_flow,
         eliminated: nm,
+        injected: (0..m_in)
+            .map(|j| b.injections.iter().filter(|i| i.input == j).map(|i| i.coefficient).sum())
+            .collect(),
     })
 }

@@ -78,6 +78,9 @@ pub struct Network {
     pub boundary_flow: BTreeMap<String, LinearMap>,
     /// Number of massless nodes eliminated by Kron reduction.
     pub eliminated: usize,
+    /// Heat (W) entering the network per unit of each input, summed over its injections (0 for
+    /// temperature inputs): the input's contribution to an energy ledger.
+    pub injected: Vec<f64>,
 }
 
 impl Network {
