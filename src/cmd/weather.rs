@@ -133,6 +133,9 @@ pub struct SummaryArgs {
 pub struct SunArgs {
     /// Weather file (CSV); without it, the built-in default weather and its site
     file: Option<PathBuf>,
+    /// Take the site (latitude, longitude, elevation, albedo) from this model file
+    #[arg(long, value_name = "MODEL", conflicts_with_all = ["lat", "lon"])]
+    model: Option<PathBuf>,
     /// Latitude, north positive (degrees); default: the file's `# latitude_deg:` line
     #[arg(long, value_name = "DEG", allow_negative_numbers = true)]
     lat: Option<f64>,
@@ -268,7 +271,16 @@ fn run_sun(a: SunArgs) -> anyhow::Result<()> {
         None => Some(Ok(default_site())),
         Some(_) => Site::from_metadata(&w),
     };
-    let from_file = from_file.transpose().map_err(bad_input)?;
+    let mut from_file = from_file.transpose().map_err(bad_input)?;
+    if let Some(path) = &a.model {
+        let m = super::model_io::load(path)?;
+        from_file = Some(Site {
+            latitude_deg: m.site.latitude_deg,
+            longitude_deg: m.site.longitude_deg,
+            elevation_m: m.site.elevation_m,
+            albedo: m.site.ground_albedo,
+        });
+    }
     let lat = a.lat.or(from_file.map(|s| s.latitude_deg));
     let lon = a.lon.or(from_file.map(|s| s.longitude_deg));
     let (Some(lat), Some(lon)) = (lat, lon) else {

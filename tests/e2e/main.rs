@@ -1,5 +1,7 @@
 //! End-to-end tests of the `dwell` binary, compiled as one test binary.
 
+mod charts;
 mod model;
+mod simulate;
 mod util;
 mod weather;

@@ -247,6 +247,30 @@ fn period(f: &Forcing, opts: &SimOptions) -> Result<(usize, usize), StudyError> 
     Ok((start, end))
 }
 
+/// Warnings when the weather was made for another place or time zone than the model's site.
+pub fn site_warnings(model: &ModelFile, weather: &WeatherSeries) -> Vec<String> {
+    let mut out = Vec::new();
+    let lat = weather.metadata_value("latitude_deg").and_then(|v| v.trim().parse::<f64>().ok());
+    let lon = weather.metadata_value("longitude_deg").and_then(|v| v.trim().parse::<f64>().ok());
+    if let (Some(lat), Some(lon)) = (lat, lon) {
+        let s = &model.site;
+        if (lat - s.latitude_deg).abs() > 1.0 || (lon - s.longitude_deg).abs() > 1.0 {
+            out.push(format!(
+                "the weather file is for latitude {lat:.2}, longitude {lon:.2} but the model's site is {:.2}, {:.2}; the sun is computed for the model's site — use weather for the house's own location",
+                s.latitude_deg, s.longitude_deg
+            ));
+        }
+    }
+    let weather_offset_h = weather.offset().local_minus_utc() as f64 / 3600.0;
+    if (weather_offset_h - model.site.utc_offset_h).abs() > 1e-9 {
+        out.push(format!(
+            "the weather's stamps are at UTC{weather_offset_h:+} h but the model's site uses UTC{:+} h; schedules follow the model's site",
+            model.site.utc_offset_h
+        ));
+    }
+    out
+}
+
 /// Runs a simulation of `house` (compiled from `model`) over `weather`.
 pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: &SimOptions) -> Result<SimResult, StudyError> {
     let step_min = opts.step_s / 60.0;
@@ -498,7 +522,7 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
     let scale = heat_in.abs().max(out.abs()).max(stored.abs()).max(1.0);
 
     // Zones and comfort.
-    let mut warnings = Vec::new();
+    let mut warnings = site_warnings(model, weather);
     let mut zones = Vec::new();
     for (zi, z) in house.zones.iter().enumerate() {
         let temps = &zone_c[zi];
