@@ -3,7 +3,7 @@
 //! discrete simulation (its `foh` form is state-shifted, so trajectories are compared), and a
 //! free-floating year against `scipy.integrate.solve_ivp(method='Radau', rtol=1e-10)`.
 //!
-//! Fixtures: `scripts/ref_solver.py --house` (scipy 1.18.1) on `dwell network MODEL --json`,
+//! Fixtures: `scripts/ref_solver.py --house` (scipy 1.17.1, pinned in scripts/requirements.txt) on `dwell network MODEL --json`,
 //! rerun by `.ci/run` so the comparison is live. Each fixture records the state space it was
 //! made from; a test fails if the house has changed since (rerun the script).
 
