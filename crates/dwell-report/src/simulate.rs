@@ -51,9 +51,10 @@ pub fn hourly_csv(r: &SimResult) -> Result<String, ReportError> {
 pub fn inputs_csv(r: &SimResult) -> Result<String, ReportError> {
     let mut header = vec!["time".to_string()];
     header.extend(r.input_names.iter().cloned());
+    let m = r.input_names.len();
     let rows = (0..r.times.len()).map(|i| {
         let mut row = vec![stamp(&r.times[i])];
-        row.extend(r.inputs[i].iter().map(|v| num(*v, 3)));
+        row.extend(r.inputs[i * m..(i + 1) * m].iter().map(|v| num(*v, 3)));
         row
     });
     csv_text(&header, rows)

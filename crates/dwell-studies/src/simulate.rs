@@ -193,9 +193,9 @@ pub struct SimResult {
     pub zone_heating_w: Vec<Vec<f64>>,
     /// Input names (as `dwell network --json`).
     pub input_names: Vec<String>,
-    /// Inputs as applied, `[hour][input]`: temperatures at the stamp, heat flows as means over
-    /// the hour starting at the stamp (NaN for the last stamp).
-    pub inputs: Vec<Vec<f64>>,
+    /// Inputs as applied, row-major `[hour · inputs + input]`: temperatures at the stamp, heat
+    /// flows as means over the hour starting at the stamp (NaN for the last stamp).
+    pub inputs: Vec<f64>,
     /// The summary.
     pub summary: Summary,
 }
@@ -411,7 +411,17 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
     let mut outdoor = Vec::with_capacity(hours + 1);
     let mut zone_c: Vec<Vec<f64>> = (0..nz).map(|_| Vec::with_capacity(hours + 1)).collect();
     let mut zone_heat: Vec<Vec<f64>> = (0..nz).map(|_| Vec::with_capacity(hours + 1)).collect();
-    let mut inputs_rows: Vec<Vec<f64>> = Vec::with_capacity(hours + 1);
+    let mut inputs_rows: Vec<f64> = Vec::with_capacity((hours + 1) * m);
+    let temperature_inputs: Vec<usize> = house
+        .inputs
+        .iter()
+        .enumerate()
+        .filter(|(_, r)| {
+            matches!(r, dwell_model::InputRole::OutdoorAir | dwell_model::InputRole::Ground | dwell_model::InputRole::Boundary { .. })
+        })
+        .map(|(j, _)| j)
+        .collect();
+    let mut u_stamp = vec![0.0; m];
     stepper.state_into(&mut x);
     let stored0: f64 = x.iter().zip(&net.system.capacitance).map(|(t, c)| t * c).sum();
     times.push(forcing.times[start]);
@@ -472,17 +482,11 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
             }
         }
         // temperatures at the stamp that opens this hour; heat flows over it
-        let mut row = hour_inputs.clone();
-        for (j, role) in house.inputs.iter().enumerate() {
-            if matches!(
-                role,
-                dwell_model::InputRole::OutdoorAir | dwell_model::InputRole::Ground | dwell_model::InputRole::Boundary { .. }
-            ) {
-                forcing.fill(start, hour * sph, &mut u_next);
-                row[j] = u_next[j];
-            }
+        forcing.fill(start, hour * sph, &mut u_stamp);
+        for &j in &temperature_inputs {
+            hour_inputs[j] = u_stamp[j];
         }
-        inputs_rows.push(row);
+        inputs_rows.extend_from_slice(&hour_inputs);
         times.push(forcing.times[start + hour + 1]);
         outdoor.push(forcing.air_c[start + hour + 1]);
         let temps = stepper.instant();
@@ -498,17 +502,12 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
         }
     }
     // last stamp: temperatures only
-    forcing.fill(start, hours * sph, &mut u_next);
-    let last: Vec<f64> = house
-        .inputs
-        .iter()
-        .enumerate()
-        .map(|(j, r)| match r {
-            dwell_model::InputRole::OutdoorAir | dwell_model::InputRole::Ground | dwell_model::InputRole::Boundary { .. } => u_next[j],
-            _ => f64::NAN,
-        })
-        .collect();
-    inputs_rows.push(last);
+    forcing.fill(start, hours * sph, &mut u_stamp);
+    hour_inputs.iter_mut().for_each(|v| *v = f64::NAN);
+    for &j in &temperature_inputs {
+        hour_inputs[j] = u_stamp[j];
+    }
+    inputs_rows.extend_from_slice(&hour_inputs);
 
     stepper.state_into(&mut x);
     let stored1: f64 = x.iter().zip(&net.system.capacitance).map(|(t, c)| t * c).sum();
