@@ -10,6 +10,7 @@ use clap::{Parser, Subcommand};
 
 mod cmd;
 mod exit;
+mod progress;
 
 /// Model a small building as a thermal RC network and integrate it exactly.
 #[derive(Parser)]
@@ -32,6 +33,18 @@ enum Command {
     Weather(cmd::weather::WeatherCommand),
     /// Simulate a model over a period and write hourly results
     Simulate(cmd::simulate::SimulateArgs),
+    /// Redraw the charts and report of a finished run from its output folder
+    Chart(cmd::chart::ChartArgs),
+    /// Size heaters: steady design load, dynamic requirement, recommendation
+    Size(cmd::size::SizeArgs),
+    /// Night setback night by night against a continuous setpoint
+    Setback(cmd::setback::SetbackArgs),
+    /// Heating off for some hours: how fast each zone cools
+    Outage(cmd::outage::OutageArgs),
+    /// Compare variants of a model (JSON Merge Patches) side by side
+    Compare(cmd::compare::CompareArgs),
+    /// Fit a grey-box RC model to measured indoor temperature and heating power
+    Calibrate(cmd::calibrate::CalibrateArgs),
 }
 
 fn main() -> ExitCode {
@@ -42,6 +55,12 @@ fn main() -> ExitCode {
         Command::Schema(a) => cmd::schema::run(a),
         Command::Weather(a) => cmd::weather::run(a),
         Command::Simulate(a) => cmd::simulate::run(a),
+        Command::Chart(a) => cmd::chart::run(a),
+        Command::Size(a) => cmd::size::run(a),
+        Command::Setback(a) => cmd::setback::run(a),
+        Command::Outage(a) => cmd::outage::run(a),
+        Command::Compare(a) => cmd::compare::run(a),
+        Command::Calibrate(a) => cmd::calibrate::run(a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

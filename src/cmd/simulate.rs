@@ -114,12 +114,17 @@ pub fn run(args: SimulateArgs) -> anyhow::Result<()> {
             return Err(bad_input(format!("--initial {t} °C is outside -50…60 °C")));
         }
     }
+    let spinner = crate::progress::spinner("simulating", args.quiet);
     let result = simulate(&model, &house, &weather, &opts).map_err(|e| match e {
         dwell_studies::StudyError::Option(_) => bad_input(e),
         other => anyhow::Error::new(other),
-    })?;
+    });
+    spinner.finish_and_clear();
+    let result = result?;
     let out = dwell_report::OutputDir::create(&args.out)?;
-    let written = dwell_report::write_simulation(&out, &result)?;
+    let mut written = dwell_report::write_simulation(&out, &result)?;
+    written.extend(dwell_report::write_simulation_inputs(&out, &model, &house, &result)?);
+    written.extend(super::chart::draw_simulation(&out, None, None, args.quiet)?);
     if !args.quiet {
         print!("{}", table(&result.summary));
         for w in &written {

@@ -5,3 +5,4 @@ mod model;
 mod simulate;
 mod util;
 mod weather;
+mod studies;

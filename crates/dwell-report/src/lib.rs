@@ -1,12 +1,35 @@
-//! Writing what the studies computed: CSV a spreadsheet opens, JSON with units in its keys.
-//! This crate computes no physics.
+//! Writing what the studies computed: CSV a spreadsheet opens, JSON with units in its keys,
+//! charts (drawn by `dwell-charts`) and a self-contained HTML report. This crate computes no
+//! physics.
 //!
 //! Every file is written to a temporary name in the output folder and renamed into place, so
 //! a run that fails midway never leaves a half-written file.
+//!
+//! Charts and the report are built from the files a run wrote ([`SimulationFiles`]), so
+//! `dwell chart DIR` redraws exactly what `simulate` drew.
 #![deny(missing_docs)]
 
+pub mod charts_simulate;
+pub mod charts_studies;
+pub mod html;
 mod outdir;
+pub mod report_simulate;
+pub mod report_studies;
+pub mod run_files;
 mod simulate;
+mod csvtext;
+pub mod size;
+pub mod setback;
+pub mod outage;
+pub mod compare;
 
+pub use charts_simulate::NamedChart;
 pub use outdir::{OutputDir, ReportError};
+pub use report_simulate::{write_charts, write_simulation_inputs, write_simulation_report, write_simulation_report_for, DrawnChart};
+pub use report_studies::{write_compare_report, write_outage_report, write_setback_report, write_sizing_report};
+pub use run_files::SimulationFiles;
 pub use simulate::{hourly_csv, inputs_csv, write_simulation};
+pub use size::write_sizing;
+pub use setback::write_setback;
+pub use outage::write_outage;
+pub use compare::write_compare;

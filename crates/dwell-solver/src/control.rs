@@ -10,7 +10,7 @@
 
 use crate::lcp::{self, LcpScratch};
 use crate::onoff::OnOffThermostat;
-use crate::packed::{dot, Packed};
+use crate::packed::Packed;
 use crate::{InputKind, SolverError, Stepper};
 use nalgebra::DMatrix;
 
@@ -58,11 +58,11 @@ impl Stepper {
         let q = channels.len();
         let mut problems = Vec::new();
         for (c, ch) in channels.iter().enumerate() {
-            if ch.output >= self.inst_x.rows() {
+            if ch.output >= self.inst_packed.rows() {
                 problems.push(format!(
                     "channel {c}: output {} is not an instant readout row (0..{})",
                     ch.output,
-                    self.inst_x.rows()
+                    self.inst_packed.rows()
                 ));
             }
             if channels[..c].iter().any(|o| o.output == ch.output) {
@@ -88,18 +88,16 @@ impl Stepper {
         let mut gains = DMatrix::zeros(q, self.n);
         let mut influence = vec![0.0; q * q];
         for (c, ch) in channels.iter().enumerate() {
-            let mut e = vec![0.0; self.w.len()];
+            let mut e = vec![0.0; self.packed_inputs()];
             for &(j, p) in &ch.weights {
                 e[j] += p;
             }
-            let mut ds = vec![0.0; self.n];
-            self.g.mul_into(&e, &mut ds);
+            let ds = self.input_response(&e);
             for (i, v) in ds.iter().enumerate() {
                 gains[(c, i)] = *v;
             }
             for (r, other) in channels.iter().enumerate() {
-                influence[r * q + c] = dot(self.inst_x.row(other.output), &ds)
-                    + dot(self.inst_w.row(other.output), &e);
+                influence[r * q + c] = self.instant_row(other.output, &ds, &e);
             }
         }
         for c in 0..q {
@@ -223,7 +221,7 @@ impl Stepper {
             }
             for &(j, p) in &ch.weights {
                 u_k[j] += f * p;
-                self.w[j] += f * p;
+                self.z[self.n + j] += f * p;
             }
             for (s, g) in self.s_next.iter_mut().zip(ctl.state_gain.row(c)) {
                 *s += f * g;

@@ -1,5 +1,7 @@
 //! The exact one-step map of an [`RcSystem`], by either route.
 
+use std::sync::Arc;
+
 use nalgebra::{DMatrix, DVector};
 
 use crate::block::block_parts;
@@ -36,6 +38,46 @@ impl Transition {
             Transition::Dense(m) => m.clone(),
             Transition::Diagonal(d) => DMatrix::from_diagonal(d),
         }
+    }
+}
+
+/// The modal basis `T = C^{-1/2} V` and the capacitances `C` (J/K) that invert it:
+/// `T⁻¹ = (C T)ᵀ`, since `V` is orthogonal.
+#[derive(Debug)]
+pub(crate) struct ModalBasis {
+    /// `T`, `n × n`.
+    pub t: DMatrix<f64>,
+    /// `C` (J/K), length `n`.
+    pub capacitance: Vec<f64>,
+}
+
+impl ModalBasis {
+    /// `x = T s` (allocation-free).
+    pub(crate) fn modal_to_state_into(&self, s: &[f64], x: &mut [f64]) {
+        x.iter_mut().for_each(|v| *v = 0.0);
+        for (col, &sj) in self.t.column_iter().zip(s) {
+            for (xi, tij) in x.iter_mut().zip(col.iter()) {
+                *xi += tij * sj;
+            }
+        }
+    }
+
+    /// `s = T⁻¹ x = (C T)ᵀ x` (allocation-free).
+    pub(crate) fn state_to_modal_into(&self, x: &[f64], s: &mut [f64]) {
+        for (col, si) in self.t.column_iter().zip(s.iter_mut()) {
+            *si = col
+                .iter()
+                .zip(&self.capacitance)
+                .zip(x)
+                .map(|((t, c), x)| t * c * x)
+                .sum();
+        }
+    }
+
+    /// `T⁻¹`, `n × n`.
+    fn inverse(&self) -> DMatrix<f64> {
+        let n = self.capacitance.len();
+        DMatrix::from_fn(n, n, |i, j| self.t[(j, i)] * self.capacitance[j])
     }
 }
 
@@ -76,9 +118,12 @@ pub struct Discretization {
     pub(crate) gamma1: DMatrix<f64>,
     pub(crate) mean_gamma0: DMatrix<f64>,
     pub(crate) mean_gamma1: DMatrix<f64>,
-    /// `x = T s` and `s = T⁻¹ x`; `None` means identity (node coordinates).
-    pub(crate) to_nodes: Option<DMatrix<f64>>,
-    pub(crate) from_nodes: Option<DMatrix<f64>>,
+    /// `x = T s` with `T = C^{-1/2} V` (modal route), shared with every [`Stepper`] built
+    /// from this discretisation (it is `n × n`: 32 MB at 2,000 states); `None` means
+    /// identity (node coordinates). `T⁻¹ = Vᵀ C^{1/2} = (C T)ᵀ` is not stored.
+    ///
+    /// [`Stepper`]: crate::Stepper
+    pub(crate) to_nodes: Option<Arc<ModalBasis>>,
     spectrum: Spectrum,
 }
 
@@ -119,8 +164,10 @@ impl Discretization {
                     gamma1: p.gamma1,
                     mean_gamma0: p.mean_gamma0,
                     mean_gamma1: p.mean_gamma1,
-                    to_nodes: Some(p.to_nodes),
-                    from_nodes: Some(p.from_nodes),
+                    to_nodes: Some(Arc::new(ModalBasis {
+                        t: p.to_nodes,
+                        capacitance: sys.capacitance.clone(),
+                    })),
                     spectrum: Spectrum::Rates(p.lambda),
                 })
             }
@@ -174,7 +221,6 @@ impl Discretization {
             mean_gamma0: p.mean_gamma0,
             mean_gamma1: p.mean_gamma1,
             to_nodes: None,
-            from_nodes: None,
             spectrum: Spectrum::General(DMatrix::zeros(0, 0)),
         })
     }
@@ -205,10 +251,10 @@ impl Discretization {
     }
 
     fn nodes(&self, m: DMatrix<f64>, right: bool) -> DMatrix<f64> {
-        match (&self.to_nodes, &self.from_nodes) {
-            (Some(t), Some(ti)) if right => t * m * ti,
-            (Some(t), _) => t * m,
-            _ => m,
+        match &self.to_nodes {
+            Some(b) if right => &b.t * m * b.inverse(),
+            Some(b) => &b.t * m,
+            None => m,
         }
     }
 

@@ -31,10 +31,8 @@ use crate::{phi::phi0123, InputKind, RcSystem, SolverError};
 pub(crate) struct ModalParts {
     /// Decay rates `λ` (1/s), ≥ 0.
     pub lambda: Vec<f64>,
-    /// `x = T z`, `T = C^{-1/2} V`.
+    /// `x = T z`, `T = C^{-1/2} V` (`z = T⁻¹ x` with `T⁻¹ = Vᵀ C^{1/2}`, not stored).
     pub to_nodes: DMatrix<f64>,
-    /// `z = T⁻¹ x`, `T⁻¹ = Vᵀ C^{1/2}`.
-    pub from_nodes: DMatrix<f64>,
     pub decay: DVector<f64>,
     pub gamma0: DMatrix<f64>,
     pub gamma1: DMatrix<f64>,
@@ -74,15 +72,19 @@ pub(crate) fn modal_parts(sys: &RcSystem, h: f64) -> Result<ModalParts, SolverEr
     let lambda = clamp_rates(eig.eigenvalues.iter().copied(), n);
     let v = eig.eigenvectors;
     let sqrt_c: Vec<f64> = sys.capacitance.iter().map(|c| c.sqrt()).collect();
-    let to_nodes = DMatrix::from_fn(n, n, |i, j| v[(i, j)] / sqrt_c[i]);
-    let from_nodes = DMatrix::from_fn(n, n, |i, j| v[(j, i)] * sqrt_c[j]);
     // B̃ = Vᵀ C^{-1/2} U
     let scaled_u = DMatrix::from_fn(n, m, |i, j| sys.input[(i, j)] / sqrt_c[i]);
-    let bt = v.transpose() * scaled_u;
+    let bt = v.tr_mul(&scaled_u);
+    // T = C^{-1/2} V, in place (no second n × n matrix).
+    let mut to_nodes = v;
+    for mut col in to_nodes.column_iter_mut() {
+        for (t, sc) in col.iter_mut().zip(&sqrt_c) {
+            *t /= sc;
+        }
+    }
     let mut parts = ModalParts {
         lambda,
         to_nodes,
-        from_nodes,
         decay: DVector::zeros(n),
         gamma0: DMatrix::zeros(n, m),
         gamma1: DMatrix::zeros(n, m),

@@ -1,18 +1,13 @@
 //! Marching a [`Discretization`] through time without allocating.
 
+use std::sync::Arc;
+
 use nalgebra::DMatrix;
 
 use crate::control::Control;
-use crate::discretization::Transition;
-use crate::packed::{dot, Packed};
+use crate::discretization::{ModalBasis, Transition};
+use crate::packed::{dot, Kernel, Packed, Panels};
 use crate::{Discretization, InputKind, Readout, SolverError};
-
-/// The state transition as the stepper runs it.
-#[derive(Clone, Debug)]
-enum Step {
-    Dense(Packed),
-    Diagonal(Vec<f64>),
-}
 
 /// Steps a discretised system and evaluates readouts, allocation-free after construction.
 ///
@@ -28,27 +23,41 @@ enum Step {
 /// ```
 ///
 /// where `u(t_{k+1}⁻)` is `u_{k+1}` for temperature inputs and the held `u_k` for heat flows,
-/// and `ū = (u_k + u_{k+1})/2` for temperature inputs, `u_k` for heat flows. Cost per step:
-/// `n·(m + m_T) + (p_i + p_m)·(n + m + m_T)` multiply-adds, plus `n²` for the block route.
+/// and `ū = (u_k + u_{k+1})/2` for temperature inputs, `u_k` for heat flows.
+///
+/// The instant readout is evaluated from the step's start too, `X T (F s_k + G w) + U_y…`,
+/// so both readouts are one product with one matrix. With `s` and `w` side by side in one
+/// vector `z = [s; w]`, a step is two matrix–vector products: `[Φ | G]·z` (block) or
+/// `F∘s + G·w` (modal) for the state, and `[[X T F̄ | X T Ḡ + U_y/2…]; [X T F | X T G +
+/// U_y…]]·z` for the outputs, each matrix packed in panels of 4 or 8 rows (`packed.rs`) and
+/// run by a kernel chosen once at construction from the processor's features (AVX2 + FMA
+/// where present).
+///
+/// Cost per step: `n·(m + m_T) + (p_i + p_m)·(n + m + m_T)` multiply-adds, plus `n²` for the
+/// block route; nothing else grows with `n`.
 #[derive(Clone, Debug)]
 pub struct Stepper {
     pub(crate) n: usize,
     pub(crate) m: usize,
     temp_inputs: Vec<usize>,
     pub(crate) kinds: Vec<InputKind>,
-    transition: Step,
-    pub(crate) g: Packed,
-    pub(crate) inst_x: Packed,
-    pub(crate) inst_w: Packed,
-    mean_x: Packed,
-    mean_w: Packed,
-    to_nodes: Option<Packed>,
-    from_nodes: Option<Packed>,
-    pub(crate) s: Vec<f64>,
+    kernel: Kernel,
+    /// Modal route: the diagonal of `F`; block route: `None` (`Φ` is inside `advance`).
+    decay: Option<Vec<f64>>,
+    /// `[Φ | G]` (block) or `G` (modal), `n` rows.
+    advance: Panels,
+    /// Both readouts from the state and inputs at the step's start, `p_m + p_i` rows:
+    /// `[[X T F̄ | X T Ḡ + U_y…]; [X T F | X T G + U_y…]]` (means, then instant values).
+    outputs: Panels,
+    /// `[X T | U_y…]`, `p_i` rows, row by row, for the thermostats.
+    pub(crate) inst_packed: Packed,
+    to_nodes: Option<Arc<ModalBasis>>,
+    /// `z = [s; w]`, length `n + m + m_T`.
+    pub(crate) z: Vec<f64>,
     pub(crate) s_next: Vec<f64>,
-    pub(crate) w: Vec<f64>,
-    inst: Vec<f64>,
-    mean: Vec<f64>,
+    /// `[mean; instant]`, `p_m + p_i`.
+    out: Vec<f64>,
+    p_mean: usize,
     pub(crate) control: Option<Control>,
 }
 
@@ -77,45 +86,82 @@ impl Stepper {
         let temp_inputs: Vec<usize> = (0..m)
             .filter(|&j| disc.input_kinds()[j] == InputKind::Temperature)
             .collect();
-        let t = disc
-            .to_nodes
-            .clone()
-            .unwrap_or_else(|| DMatrix::identity(n, n));
+        let in_state = |x: &DMatrix<f64>| match &disc.to_nodes {
+            Some(b) => x * &b.t,
+            None => x.clone(),
+        };
         let g = join(&disc.gamma0, &disc.gamma1, &temp_inputs, 1.0);
         let mean_g = join(&disc.mean_gamma0, &disc.mean_gamma1, &temp_inputs, 1.0);
-        let mean_f = match &disc.mean_transition {
-            Transition::Dense(f) => f.clone(),
-            Transition::Diagonal(d) => DMatrix::from_diagonal(d),
-        };
-        let xt_inst = &instant.x * &t;
-        let xt_mean = &mean.x * &t;
+        let xt_inst = in_state(&instant.x);
+        let xt_mean = in_state(&mean.x);
         let inst_w = join(&instant.u, &instant.u, &temp_inputs, 1.0);
         let mean_w = &xt_mean * &mean_g + join(&mean.u, &mean.u, &temp_inputs, 0.5);
-        let transition = match &disc.transition {
-            Transition::Dense(f) => Step::Dense(Packed::from_matrix(f)),
-            Transition::Diagonal(d) => Step::Diagonal(d.as_slice().to_vec()),
+        let mean_s = match &disc.mean_transition {
+            Transition::Dense(f) => &xt_mean * f,
+            Transition::Diagonal(d) => {
+                let mut out = xt_mean;
+                for (mut col, di) in out.column_iter_mut().zip(d.iter()) {
+                    col *= *di;
+                }
+                out
+            }
+        };
+        let (decay, advance, inst_s) = match &disc.transition {
+            Transition::Dense(f) => (None, Panels::from_blocks(f, &g), &xt_inst * f),
+            Transition::Diagonal(d) => {
+                let mut xf = xt_inst.clone();
+                for (mut col, di) in xf.column_iter_mut().zip(d.iter()) {
+                    col *= *di;
+                }
+                (Some(d.as_slice().to_vec()), Panels::from_matrix(&g), xf)
+            }
         };
         let wl = m + temp_inputs.len();
+        let (p_mean, p_inst) = (mean.outputs(), instant.outputs());
+        let mut inst_full = DMatrix::zeros(p_inst, n + wl);
+        inst_full.columns_mut(0, n).copy_from(&xt_inst);
+        inst_full.columns_mut(n, wl).copy_from(&inst_w);
+        let mut out_s = DMatrix::zeros(p_mean + p_inst, n);
+        out_s.rows_mut(0, p_mean).copy_from(&mean_s);
+        out_s.rows_mut(p_mean, p_inst).copy_from(&inst_s);
+        let mut out_w = DMatrix::zeros(p_mean + p_inst, wl);
+        out_w.rows_mut(0, p_mean).copy_from(&mean_w);
+        out_w
+            .rows_mut(p_mean, p_inst)
+            .copy_from(&(&xt_inst * &g + &inst_w));
         Ok(Stepper {
             n,
             m,
             temp_inputs,
             kinds: disc.input_kinds().to_vec(),
-            transition,
-            g: Packed::from_matrix(&g),
-            inst_x: Packed::from_matrix(&xt_inst),
-            inst_w: Packed::from_matrix(&inst_w),
-            mean_x: Packed::from_matrix(&(xt_mean * mean_f)),
-            mean_w: Packed::from_matrix(&mean_w),
-            to_nodes: disc.to_nodes.as_ref().map(Packed::from_matrix),
-            from_nodes: disc.from_nodes.as_ref().map(Packed::from_matrix),
-            s: vec![0.0; n],
+            kernel: Kernel::detect(),
+            decay,
+            advance,
+            outputs: Panels::from_blocks(&out_s, &out_w),
+            inst_packed: Packed::from_matrix(&inst_full),
+            to_nodes: disc.to_nodes.clone(),
+            z: vec![0.0; n + wl],
             s_next: vec![0.0; n],
-            w: vec![0.0; wl],
-            inst: vec![0.0; instant.outputs()],
-            mean: vec![0.0; mean.outputs()],
+            out: vec![0.0; p_mean + p_inst],
+            p_mean,
             control: None,
         })
+    }
+
+    /// `G e` for a packed input vector `e` (length `m + m_T`): the state change over one step
+    /// due to `e` alone (setup only; allocates).
+    pub(crate) fn input_response(&self, e: &[f64]) -> Vec<f64> {
+        let cols = self.advance.cols();
+        let mut x = vec![0.0; cols];
+        x[cols - e.len()..].copy_from_slice(e);
+        let mut out = vec![0.0; self.n];
+        self.advance.gemv(self.kernel, &x, &mut out, false);
+        out
+    }
+
+    /// Length of the packed input vector `w` (`m + m_T`).
+    pub(crate) fn packed_inputs(&self) -> usize {
+        self.z.len() - self.n
     }
 
     /// Sets the node temperatures `x` (°C), length `n`.
@@ -124,9 +170,10 @@ impl Stepper {
     /// If `x.len() != n`.
     pub fn set_state(&mut self, x: &[f64]) {
         assert_eq!(x.len(), self.n, "state length");
-        match &self.from_nodes {
-            Some(ti) => ti.mul_into(x, &mut self.s),
-            None => self.s.copy_from_slice(x),
+        let s = &mut self.z[..self.n];
+        match &self.to_nodes {
+            Some(b) => b.state_to_modal_into(x, s),
+            None => s.copy_from_slice(x),
         }
     }
 
@@ -136,20 +183,21 @@ impl Stepper {
     /// If `out.len() != n`.
     pub fn state_into(&self, out: &mut [f64]) {
         assert_eq!(out.len(), self.n, "state length");
+        let s = &self.z[..self.n];
         match &self.to_nodes {
-            Some(t) => t.mul_into(&self.s, out),
-            None => out.copy_from_slice(&self.s),
+            Some(b) => b.modal_to_state_into(s, out),
+            None => out.copy_from_slice(s),
         }
     }
 
     /// The instant readout at the end of the last step.
     pub fn instant(&self) -> &[f64] {
-        &self.inst
+        &self.out[self.p_mean..]
     }
 
     /// The mean readout over the last step.
     pub fn mean(&self) -> &[f64] {
-        &self.mean
+        &self.out[..self.p_mean]
     }
 
     /// Number of states `n`.
@@ -177,45 +225,52 @@ impl Stepper {
     pub(crate) fn load_inputs(&mut self, u_k: &[f64], u_next: &[f64]) {
         assert_eq!(u_k.len(), self.m, "u_k length");
         assert_eq!(u_next.len(), self.m, "u_next length");
-        self.w[..self.m].copy_from_slice(u_k);
-        for (slot, &j) in self.w[self.m..].iter_mut().zip(&self.temp_inputs) {
+        let (m, n) = (self.m, self.n);
+        let w = &mut self.z[n..];
+        w[..m].copy_from_slice(u_k);
+        for (slot, &j) in w[m..].iter_mut().zip(&self.temp_inputs) {
             *slot = u_next[j] - u_k[j];
         }
     }
 
     /// `s_next = F s + G w` (does not touch `s`).
     pub(crate) fn advance(&mut self) {
-        match &self.transition {
-            Step::Dense(f) => {
-                for i in 0..self.n {
-                    self.s_next[i] = dot(f.row(i), &self.s) + dot(self.g.row(i), &self.w);
+        match &self.decay {
+            None => self
+                .advance
+                .gemv(self.kernel, &self.z, &mut self.s_next, false),
+            Some(d) => {
+                let (s, w) = self.z.split_at(self.n);
+                for ((next, di), si) in self.s_next.iter_mut().zip(d).zip(s) {
+                    *next = di * si;
                 }
-            }
-            Step::Diagonal(d) => {
-                for (i, (next, di)) in self.s_next.iter_mut().zip(d).enumerate() {
-                    *next = di * self.s[i] + dot(self.g.row(i), &self.w);
-                }
+                self.advance.gemv(self.kernel, w, &mut self.s_next, true);
             }
         }
     }
 
-    /// Mean readout from `s` and `w`, then `s ← s_next` and the instant readout.
+    /// Both readouts from `s` and `w` (with `s_next = F s + G w`), then `s ← s_next`.
     pub(crate) fn finish(&mut self) {
-        self.mean_x.mul_into(&self.s, &mut self.mean);
-        self.mean_w.mul_add_into(&self.w, &mut self.mean);
-        std::mem::swap(&mut self.s, &mut self.s_next);
-        self.inst_x.mul_into(&self.s, &mut self.inst);
-        self.inst_w.mul_add_into(&self.w, &mut self.inst);
+        self.outputs
+            .gemv(self.kernel, &self.z, &mut self.out, false);
+        self.z[..self.n].copy_from_slice(&self.s_next);
+    }
+
+    /// Instant output `row` for the state `s` and the packed inputs `w`.
+    pub(crate) fn instant_row(&self, row: usize, s: &[f64], w: &[f64]) -> f64 {
+        let r = self.inst_packed.row(row);
+        dot(&r[..self.n], s) + dot(&r[self.n..], w)
     }
 
     /// Instant output `row` for the state in `s_next` and the inputs in `w`.
     pub(crate) fn instant_row_next(&self, row: usize) -> f64 {
-        dot(self.inst_x.row(row), &self.s_next) + dot(self.inst_w.row(row), &self.w)
+        self.instant_row(row, &self.s_next, &self.z[self.n..])
     }
 
     /// Instant output `row` for the current state and the inputs `u_k` at the step's start
     /// (the ramp part of `w` is zero at that instant).
     pub(crate) fn instant_row_now(&self, row: usize, u_k: &[f64]) -> f64 {
-        dot(self.inst_x.row(row), &self.s) + dot(&self.inst_w.row(row)[..self.m], u_k)
+        let r = self.inst_packed.row(row);
+        dot(&r[..self.n], &self.z[..self.n]) + dot(&r[self.n..self.n + self.m], u_k)
     }
 }

@@ -1,0 +1,36 @@
+//! Outputs of `dwell outage`: `outage.json` and `outage_path.csv` (every step).
+
+use dwell_studies::outage::OutageStudy;
+
+use crate::csvtext::{csv_text, json, num};
+use crate::outdir::{OutputDir, ReportError};
+
+/// `outage_path.csv`: local time, outdoor, heating on or off, then per zone air and heat.
+pub fn outage_path_csv(s: &OutageStudy) -> Result<String, ReportError> {
+    let t = &s.trace;
+    let mut header = vec!["local_time".to_string(), "outdoor_c".to_string()];
+    for z in &s.zones {
+        header.push(format!("{}_c", z.zone));
+        header.push(format!("{}_heating_w", z.zone));
+    }
+    let h: Vec<&str> = header.iter().map(|s| s.as_str()).collect();
+    let rows = (0..t.local.len()).map(|k| {
+        let mut r = vec![t.local[k].format("%Y-%m-%dT%H:%M").to_string(), num(Some(t.outdoor_c[k]), 2)];
+        for z in 0..s.zones.len() {
+            r.push(num(Some(t.zone_c[z][k]), 3));
+            r.push(num(Some(t.heat_w[z][k]), 1));
+        }
+        r
+    });
+    csv_text(&h, rows)
+}
+
+/// Writes the outputs of an outage study.
+pub fn write_outage(out: &OutputDir, s: &OutageStudy) -> Result<Vec<std::path::PathBuf>, ReportError> {
+    let j = json(s, "outage.json")?;
+    let p = outage_path_csv(s)?;
+    Ok(vec![
+        out.write("outage.json", j.as_bytes())?,
+        out.write("outage_path.csv", p.as_bytes())?,
+    ])
+}
