@@ -45,9 +45,18 @@ enum Command {
     Compare(cmd::compare::CompareArgs),
     /// Fit a grey-box RC model to measured indoor temperature and heating power
     Calibrate(cmd::calibrate::CalibrateArgs),
+    /// Run many variants from a CSV of rows on all cores; `sweep merge` joins shards
+    Sweep(cmd::sweep::SweepArgs),
 }
 
 fn main() -> ExitCode {
+    // Writing to a closed pipe (`dwell check m.json | head`) should end the process quietly,
+    // as other command-line tools do, not panic inside `print!`.
+    #[cfg(unix)]
+    // SAFETY: restoring the default disposition of SIGPIPE before any thread is started.
+    unsafe {
+        libc::signal(libc::SIGPIPE, libc::SIG_DFL);
+    }
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Check(a) => cmd::check::run(a),
@@ -61,6 +70,7 @@ fn main() -> ExitCode {
         Command::Outage(a) => cmd::outage::run(a),
         Command::Compare(a) => cmd::compare::run(a),
         Command::Calibrate(a) => cmd::calibrate::run(a),
+        Command::Sweep(a) => cmd::sweep::run(a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

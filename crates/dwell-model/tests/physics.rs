@@ -1,6 +1,7 @@
 //! Checks of the model compiler against published values and hand calculations.
 
 use dwell_model::{compile, parse_model, summary::zone_steady_conductance, House};
+use dwell_testkit::{record, Check};
 
 fn house(text: &str) -> House {
     let m = parse_model(text, "test.json").unwrap_or_else(|e| panic!("{e}"));
@@ -24,6 +25,14 @@ fn u_value_of_a_solid_brick_wall_matches_the_handbook() {
     }"#,
     );
     let u = h.constructions[0].u_value_w_m2k;
+    record("model", Check {
+        area: "U-values (ISO 6946)",
+        what: "215 mm brick + 13 mm plaster, R_so 0.055, R_si 0.123",
+        source: "Chudley & Greeno, Building Construction Handbook, U-value calculations: 2.174 W/m²K",
+        tolerance: "0.005 W/m²K",
+        obtained: format!("{u:.4} W/m²K"),
+        pass: (u - 2.174).abs() < 0.005,
+    });
     assert!((u - 2.174).abs() < 0.005, "U = {u}");
 }
 
@@ -83,6 +92,14 @@ fn single_zone_box_steady_heat_flow_equals_sum_of_ua_plus_ventilation() {
     let h = house(BOX);
     let want = box_h_by_hand();
     let got = zone_steady_conductance(&h).unwrap()[0];
+    record("model", Check {
+        area: "Steady state",
+        what: "single-zone box: network heat-loss coefficient vs Σ U·A + H_ve",
+        source: "hand calculation with ISO 6946 surface resistances, ρc_p 1200 J/m³K (ISO 13790)",
+        tolerance: "1e-9 relative",
+        obtained: format!("{got:.6} vs {want:.6} W/K ({:.1e})", ((got - want) / want).abs()),
+        pass: ((got - want) / want).abs() < 1e-9,
+    });
     assert!(((got - want) / want).abs() < 1e-9, "{got} vs {want}");
     // Also through a steady solve: 1000 W of heat at 0 °C outside raises the air by 1000/H.
     let net = &h.network;
@@ -199,6 +216,14 @@ fn ground_floor_steady_u_equals_iso13370() {
     let dt = 0.87f64;
     let u = 4.0 / (std::f64::consts::PI * b + dt) * (std::f64::consts::PI * b / dt + 1.0).ln();
     let got = zone_steady_conductance(&h).unwrap()[0];
+    record("model", Check {
+        area: "Ground floors (ISO 13370)",
+        what: "10 × 10 m uninsulated slab, P 40 m: network steady conductance vs U·A",
+        source: "ISO 13370:2017 §8.1 slab-on-ground formula (from memory), hand arithmetic",
+        tolerance: "1e-9 relative",
+        obtained: format!("{got:.4} vs {:.4} W/K", 100.0 * u),
+        pass: (got - 100.0 * u).abs() < 1e-9 * got,
+    });
     assert!((got - 100.0 * u).abs() < 1e-9 * got, "{got} vs {}", 100.0 * u);
 }
 

@@ -60,10 +60,19 @@ fn checks_md_one_node_values() {
         for _ in 0..8 {
             s.step(&[0.0, 0.0], &[0.0, 0.0]);
         }
+        let t8 = s.instant()[0];
+        dwell_testkit::record("solver", dwell_testkit::Check {
+            area: "Analytic solutions",
+            what: &format!("one node H 200 W/K, C 20 MJ/K ({route:?} route): Φ, Γ and T(8 h)"),
+            source: "T_e + (T₀ − T_e)·e^(−t/RC); values in CHECKS.md (scipy)",
+            tolerance: "Φ, Γ 1e-12; T(8 h) 5e-6 K (5 printed digits)",
+            obtained: format!("Φ {:.12}, T(8 h) {t8:.6} °C", d.phi()[(0, 0)]),
+            pass: (t8 - 14.99523).abs() < 5e-6 && (d.phi()[(0, 0)] - 0.964640293483).abs() < 1e-12,
+        });
         assert!(
-            (s.instant()[0] - 14.99523).abs() < 5e-6,
+            (t8 - 14.99523).abs() < 5e-6,
             "{route:?} T(8h) = {}",
-            s.instant()[0]
+            t8
         );
     }
 }

@@ -369,6 +369,14 @@ mod tests {
         .unwrap();
         let en12831 = 682.2; // hand calculation above
         let got = s.zones[0].steady_w;
+        dwell_testkit::record("studies", dwell_testkit::Check {
+            area: "Design heat load (EN 12831)",
+            what: "worked single-room example with an unheated loft",
+            source: "EN 12831 formulas Φ = Φ_T + Φ_V (0.34 W·h/m³K and clause numbers from memory), hand calculation",
+            tolerance: "1 %",
+            obtained: format!("{got:.1} W vs {en12831} W ({:.2} %)", 100.0 * (got - en12831) / en12831),
+            pass: ((got - en12831) / en12831).abs() < 0.01,
+        });
         assert!(((got - en12831) / en12831).abs() < 0.01, "{got} vs {en12831}");
         // and the parts: fabric within 0.5 % (only the loft's air term differs), ventilation
         // exactly 1200/1224 of EN's

@@ -11,6 +11,7 @@ use std::path::PathBuf;
 
 use dwell_solver::{Discretization, InputKind, RcSystem, Readout, Route, Stepper};
 use nalgebra::DMatrix;
+use dwell_testkit::{record, Check};
 use serde_json::Value;
 
 const HOURS: usize = 8760;
@@ -100,6 +101,27 @@ fn check_house(stem: &str) {
             }
         }
         // SciPy's exact FOH+ZOH trajectory: 1e-10 relative; Radau at rtol 1e-10: 1e-6 K.
+        let generator = fx["generator"].as_str().unwrap_or("scripts/ref_solver.py").to_string();
+        let phi_err = rel(&d.phi(), &expm);
+        let g_err = rel(&d.gamma0(), &zoh_b);
+        record("scipy", Check {
+            area: "Exact discretisation against SciPy",
+            what: &format!("{stem}, {route:?} route: Φ, Γ₀ and a year of FOH/ZOH steps"),
+            source: &format!("scipy.linalg.expm, scipy.signal.cont2discrete zoh/foh ({generator})"),
+            tolerance: "1e-10 relative",
+            obtained: format!("Φ {phi_err:.1e}, Γ₀ {g_err:.1e}, trajectory {worst_disc:.1e}"),
+            pass: phi_err < 1e-10 && g_err < 1e-10 && worst_disc < 1e-10,
+        });
+        if ivp_fx.is_some() {
+            record("scipy", Check {
+                area: "Exact discretisation against SciPy",
+                what: &format!("{stem}, {route:?} route: a free-floating year vs Radau"),
+                source: &format!("scipy.integrate.solve_ivp Radau, rtol 1e-10 ({generator})"),
+                tolerance: "1e-6 K",
+                obtained: format!("{worst_ivp:.1e} K"),
+                pass: worst_ivp < 1e-6,
+            });
+        }
         assert!(worst_disc < 1e-10, "{stem} {route:?}: vs scipy discrete {worst_disc:e}");
         assert!(worst_ivp < 1e-6, "{stem} {route:?}: vs solve_ivp {worst_ivp:e} K");
     }

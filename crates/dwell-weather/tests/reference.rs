@@ -39,6 +39,14 @@ fn solar_position_matches_pvlib_nrel_spa_at_three_latitudes() {
         }
     }
     eprintln!("solar position vs pvlib: max |Δzenith| {max_z:.2e}°, max |Δazimuth| {max_az:.2e}°");
+    dwell_testkit::record("weather", dwell_testkit::Check {
+        area: "Sun and irradiance",
+        what: "solar zenith and azimuth, a year at latitudes −12.5, 45, 64.8",
+        source: "pvlib 0.16.1 solarposition.get_solarposition(method='nrel_numpy') (NREL SPA, Reda & Andreas 2004)",
+        tolerance: "1e-6°",
+        obtained: format!("zenith {max_z:.1e}°, azimuth {max_az:.1e}°"),
+        pass: max_z < 1e-6 && max_az < 1e-6,
+    });
     assert!(max_z < 1e-6, "zenith differs by {max_z}°");
     assert!(max_az < 1e-6, "azimuth differs by {max_az}°");
 }
@@ -79,6 +87,14 @@ fn transposition_matches_pvlib_isotropic_hay_davies_and_perez() {
         }
     }
     eprintln!("transposition vs pvlib: max |Δ| {max:.2e} W/m²");
+    dwell_testkit::record("weather", dwell_testkit::Check {
+        area: "Sun and irradiance",
+        what: "plane irradiance, 8 planes, isotropic, Hay–Davies and Perez skies",
+        source: "pvlib 0.16.1 irradiance.get_total_irradiance",
+        tolerance: "1e-6 W/m² (issue: 1 W/m² or 0.5 %)",
+        obtained: format!("{max:.1e} W/m²"),
+        pass: max < 1e-6,
+    });
     assert!(max < 1e-6, "plane irradiance differs by {max} W/m²");
 }
 
