@@ -160,6 +160,30 @@ pub fn sizing_charts(s: &Sizing) -> Vec<NamedChart> {
             stacked: false,
         }),
     }];
+    if !s.capacity_curve.is_empty() {
+        let c = &s.capacity_curve;
+        out.push(NamedChart {
+            name: "capacity-curve".into(),
+            caption: "Occupied hours below the comfort band over the design cold spell, for heaters scaled from the dynamic requirement: the hours rise steeply once the capacity falls short.".into(),
+            chart: Chart::Line(LineChart {
+                title: "Capacity against occupied hours below the comfort band".into(),
+                x_label: "total heater capacity (W)".into(),
+                y_label: "occupied zone-hours below the band (h)".into(),
+                time_origin: None,
+                series: vec![Series {
+                    label: format!("design spell at {} °C", s.design_outdoor_c),
+                    x: c.iter().map(|p| p.total_capacity_w).collect(),
+                    y: c.iter().map(|p| p.occupied_hours_below_h as f64).collect(),
+                    stroke: Stroke::Solid,
+                    colour: Some(0),
+                }],
+                bands: vec![],
+                thresholds: vec![],
+                secondary: None,
+                y_from_zero: true,
+            }),
+        });
+    }
     if let Some(ld) = &s.load_duration {
         out.push(NamedChart {
             name: "load-duration".into(),

@@ -75,14 +75,32 @@ pub fn load_duration_csv(s: &Sizing) -> Result<Option<String>, ReportError> {
     .map(Some)
 }
 
+/// `capacity_curve.csv`: capacity against occupied hours below the comfort band.
+pub fn capacity_curve_csv(s: &Sizing) -> Result<Option<String>, ReportError> {
+    if s.capacity_curve.is_empty() {
+        return Ok(None);
+    }
+    csv_text(
+        &["fraction_of_dynamic", "total_capacity_w", "occupied_hours_below_h"],
+        s.capacity_curve
+            .iter()
+            .map(|p| vec![format!("{:.2}", p.fraction), num(Some(p.total_capacity_w), 1), p.occupied_hours_below_h.to_string()]),
+    )
+    .map(Some)
+}
+
 /// Writes the outputs of a sizing; everything is formatted before anything is written.
 pub fn write_sizing(out: &OutputDir, s: &Sizing) -> Result<Vec<std::path::PathBuf>, ReportError> {
     let j = json(s, "sizing.json")?;
     let c = sizing_csv(s)?;
     let l = load_duration_csv(s)?;
+    let k = capacity_curve_csv(s)?;
     let mut w = vec![out.write("sizing.json", j.as_bytes())?, out.write("sizing.csv", c.as_bytes())?];
     if let Some(l) = l {
         w.push(out.write("load_duration.csv", l.as_bytes())?);
+    }
+    if let Some(k) = k {
+        w.push(out.write("capacity_curve.csv", k.as_bytes())?);
     }
     Ok(w)
 }

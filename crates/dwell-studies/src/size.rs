@@ -206,6 +206,10 @@ pub struct Sizing {
     pub total: SizingTotal,
     /// Load duration curve, with a weather year.
     pub load_duration: Option<LoadDuration>,
+    /// Capacity against occupied hours below the comfort target over the design spell: every
+    /// thermostat zone's dynamic requirement scaled by the same fraction (empty when there is
+    /// no dynamic requirement).
+    pub capacity_curve: Vec<CapacityPoint>,
     /// Plain-words notes.
     pub warnings: Vec<String>,
     /// Cautions.
@@ -250,6 +254,45 @@ fn thermostat_zones(model: &ModelFile, house: &House) -> Vec<Sized> {
         });
     }
     out
+}
+
+/// One point of the capacity curve.
+#[derive(Clone, Debug, Serialize, PartialEq)]
+pub struct CapacityPoint {
+    /// Fraction of each zone's dynamic requirement (1).
+    pub fraction: f64,
+    /// Total capacity of the thermostat zones (W).
+    pub total_capacity_w: f64,
+    /// Occupied zone-hours below the comfort target over the spell, recovery hours excused
+    /// as in the comfort test (h).
+    pub occupied_hours_below_h: usize,
+}
+
+/// Fractions of the dynamic requirement at which the capacity curve is evaluated.
+pub const CAPACITY_FRACTIONS: [f64; 10] = [0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 1.0, 1.1, 1.25];
+
+/// Occupied zone-hours of a run below the comfort target by more than
+/// [`COMFORT_TOLERANCE_K`] (same stamps and excuses as [`comfort_test`]).
+pub fn occupied_hours_below(model: &ModelFile, house: &House, run: &SimResult, recovery_h: f64) -> usize {
+    let sch = ZoneSchedules::new(model);
+    let mut n = 0;
+    for (zi, z) in house.zones.iter().enumerate() {
+        if !sch.has_thermostat(zi) {
+            continue;
+        }
+        for (i, t) in run.times.iter().enumerate().skip(1) {
+            let local = sch.local(*t);
+            if !sch.occupied(zi, local) || sch.recovering(zi, local, recovery_h) {
+                continue;
+            }
+            let sp = sch.setpoint(zi, local).expect("thermostat zone");
+            let target = z.comfort.map_or(sp, |(lo, _)| lo.min(sp));
+            if target - run.zone_c[zi][i] > COMFORT_TOLERANCE_K {
+                n += 1;
+            }
+        }
+    }
+    n
 }
 
 /// Result of the comfort test.
@@ -548,6 +591,18 @@ pub fn size(model: &ModelFile, house: &House, year: Option<&WeatherSeries>, opts
         Some(w) => Some(load_duration(model, house, w, &sized, &base, opts)?),
         None => None,
     };
+    let mut capacity_curve = Vec::new();
+    if let Some(d) = &dynamic {
+        for f in CAPACITY_FRACTIONS {
+            let caps: Vec<f64> = d.iter().map(|c| (c * f).max(1.0)).collect();
+            let r = run_with(&m, house, &sized, &caps, &spell, &o)?;
+            capacity_curve.push(CapacityPoint {
+                fraction: f,
+                total_capacity_w: caps.iter().sum(),
+                occupied_hours_below_h: occupied_hours_below(&m, house, &r, opts.recovery_h),
+            });
+        }
+    }
     Ok(Sizing {
         model: house.name.clone(),
         design_outdoor_c: opts.design_c,
@@ -560,6 +615,7 @@ pub fn size(model: &ModelFile, house: &House, year: Option<&WeatherSeries>, opts
         zones,
         total,
         load_duration,
+        capacity_curve,
         warnings,
         cautions: vec![crate::CAUTION.to_string()],
     })
