@@ -10,7 +10,6 @@ fn visible(quiet: bool) -> bool {
     !quiet && std::io::stderr().is_terminal()
 }
 
-#[allow(dead_code)] // for the studies that loop over many runs (size, compare)
 /// A bar of `len` steps labelled `message`; hidden when quiet or not on a terminal.
 pub fn bar(len: u64, message: &str, quiet: bool) -> ProgressBar {
     if !visible(quiet) {

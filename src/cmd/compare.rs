@@ -4,7 +4,7 @@ use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
 use chrono::NaiveDate;
-use dwell_studies::compare::{compare, grid, patched, Comparison, Variant};
+use dwell_studies::compare::{compare_with_progress, grid, patched, Comparison, Variant};
 use dwell_studies::SimOptions;
 use serde_json::Value;
 
@@ -181,7 +181,10 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
         to: args.to,
         ..SimOptions::default()
     };
-    let cmp = compare(&variants, &weather, &opts, args.price).map_err(|e| match e.source {
+    let bar = crate::progress::bar(variants.len() as u64, "variants", args.quiet);
+    let cmp = compare_with_progress(&variants, &weather, &opts, args.price, &|| bar.inc(1));
+    bar.finish_and_clear();
+    let cmp = cmp.map_err(|e| match e.source {
         dwell_studies::StudyError::Option(_) => bad_input(e),
         _ => anyhow::Error::new(e),
     })?;

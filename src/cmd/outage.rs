@@ -80,7 +80,9 @@ pub fn run(args: OutageArgs) -> anyhow::Result<()> {
         frost_below_c: args.frost_below,
         ..OutageOptions::new(start, args.hours)
     };
+    let spinner = crate::progress::spinner("simulating the outage", args.quiet);
     let study = outage(&model, &house, &weather, &opts).map_err(super::size::study_error)?;
+    spinner.finish_and_clear();
     let out = dwell_report::OutputDir::create(&args.out)?;
     let mut written = dwell_report::write_outage(&out, &study)?;
     let zones: Vec<String> = house.zones.iter().map(|z| z.id.clone()).collect();

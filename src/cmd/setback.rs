@@ -75,7 +75,9 @@ pub fn run(args: SetbackArgs) -> anyhow::Result<()> {
         ready_by: args.ready_by,
         ..Default::default()
     };
+    let spinner = crate::progress::spinner("simulating nights", args.quiet);
     let study = setback(&model, &house, &weather, &opts).map_err(super::size::study_error)?;
+    spinner.finish_and_clear();
     let out = dwell_report::OutputDir::create(&args.out)?;
     let zones: Vec<String> = house.zones.iter().map(|z| z.id.clone()).collect();
     let mut written = dwell_report::write_setback(&out, &study, &zones)?;

@@ -69,7 +69,9 @@ pub fn run(args: SizeArgs) -> anyhow::Result<()> {
         size_step_w: args.size_step,
         step_s: args.step as f64 * 60.0,
     };
+    let spinner = crate::progress::spinner("sizing", args.quiet);
     let sizing = size(&model, &house, year.as_ref(), &opts).map_err(super::size::study_error)?;
+    spinner.finish_and_clear();
     let out = dwell_report::OutputDir::create(&args.out)?;
     let mut written = dwell_report::write_sizing(&out, &sizing)?;
     written.extend(dwell_report::write_sizing_report(&out, &sizing, &house)?);

@@ -135,6 +135,18 @@ pub fn compare(
     opts: &SimOptions,
     price_per_kwh: Option<f64>,
 ) -> Result<Comparison, VariantError> {
+    compare_with_progress(variants, weather, opts, price_per_kwh, &|| {})
+}
+
+/// [`compare`], calling `done` after each variant finishes (from any worker thread), so a
+/// caller can show progress.
+pub fn compare_with_progress(
+    variants: &[Variant],
+    weather: &WeatherSeries,
+    opts: &SimOptions,
+    price_per_kwh: Option<f64>,
+    done: &(dyn Fn() + Sync),
+) -> Result<Comparison, VariantError> {
     let results: Vec<_> = variants
         .par_iter()
         .map(|v| {
@@ -142,10 +154,12 @@ pub fn compare(
             if let Some(p) = price_per_kwh {
                 m.heaters.iter_mut().for_each(|h| h.price_per_kwh = Some(p));
             }
-            simulate(&m, &v.house, weather, opts).map_err(|e| VariantError {
+            let r = simulate(&m, &v.house, weather, opts).map_err(|e| VariantError {
                 variant: v.name.clone(),
                 source: e,
-            })
+            });
+            done();
+            r
         })
         .collect();
     let mut sums = Vec::new();
