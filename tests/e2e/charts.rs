@@ -499,7 +499,7 @@ fn study_commands_write_their_charts_and_reports() {
                 out("size"),
             ],
             "size",
-            vec!["sizing"],
+            vec!["sizing", "capacity-curve"],
         ),
         (
             vec![
