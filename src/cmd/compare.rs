@@ -58,10 +58,12 @@ fn split_eq<'a>(flag: &str, s: &'a str) -> anyhow::Result<(&'a str, &'a str)> {
     }
 }
 
-fn read_patch(path: &Path) -> anyhow::Result<Value> {
+fn read_patch(variant: &str, path: &Path) -> anyhow::Result<Value> {
     let text = std::fs::read_to_string(path)
-        .map_err(|e| bad_input(format!("cannot read variant file {}: {e}; check the path", path.display())))?;
-    serde_json::from_str(&text).map_err(|e| bad_input(format!("{}:{}:{}: not valid JSON: {e}", path.display(), e.line(), e.column())))
+        .map_err(|e| bad_input(format!("variant {variant}: cannot read {}: {e}; check the path", path.display())))?;
+    serde_json::from_str(&text).map_err(|e| {
+        bad_input(format!("variant {variant}: {}:{}:{}: not valid JSON: {e}", path.display(), e.line(), e.column()))
+    })
 }
 
 /// A patch of a variant: (part name, patch label, patch).
@@ -106,7 +108,7 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
         let (name, path) = split_eq("--variant", v)?;
         specs.push((
             name.to_string(),
-            vec![(name.to_string(), path.to_string(), read_patch(Path::new(path))?)],
+            vec![(name.to_string(), path.to_string(), read_patch(name, Path::new(path))?)],
         ));
     }
     let mut lists = Vec::new();
@@ -119,7 +121,7 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
             } else {
                 list.push((
                     format!("{key}={}", stem(e)),
-                    Some((stem(e), e.to_string(), read_patch(Path::new(e))?)),
+                    Some((stem(e), e.to_string(), read_patch(&stem(e), Path::new(e))?)),
                 ));
             }
         }

@@ -43,6 +43,8 @@ pub fn from_value(value: serde_json::Value, file: &str) -> Result<ModelFile, Mod
 pub(crate) fn json_path(p: &str) -> String {
     if p.is_empty() || p == "." {
         "$".into()
+    } else if p.starts_with('[') {
+        format!("${p}")
     } else {
         format!("$.{p}")
     }
