@@ -4,7 +4,9 @@
 
 use std::path::PathBuf;
 
-use dwell_calibrate::{calibrate, model_file, read_measured, CalibrateError, FitOptions, ModelFileOptions, Order};
+use dwell_calibrate::{
+    calibrate, model_file, read_measured, CalibrateError, FitOptions, ModelFileOptions, Order,
+};
 use dwell_charts::{Chart, LineChart, Series, Stroke};
 use dwell_report::OutputDir;
 
@@ -34,9 +36,17 @@ pub struct CalibrateArgs {
 
 /// Runs the command.
 pub fn run(args: CalibrateArgs) -> anyhow::Result<()> {
-    let order = Order::from_number(args.order).ok_or_else(|| bad_input(format!("--order {}: the order must be 1, 2 or 3", args.order)))?;
+    let order = Order::from_number(args.order).ok_or_else(|| {
+        bad_input(format!(
+            "--order {}: the order must be 1, 2 or 3",
+            args.order
+        ))
+    })?;
     if !(args.floor_area.is_finite() && args.floor_area > 0.0) {
-        return Err(bad_input(format!("--floor-area {}: give a positive floor area in m²", args.floor_area)));
+        return Err(bad_input(format!(
+            "--floor-area {}: give a positive floor area in m²",
+            args.floor_area
+        )));
     }
     let data = read_measured(&args.data).map_err(bad_input)?;
     let spinner = crate::progress::spinner("fitting", args.quiet);
@@ -63,10 +73,15 @@ pub fn run(args: CalibrateArgs) -> anyhow::Result<()> {
     report["ci_method"] = serde_json::json!("Jacobian at the optimum: cov = s²(JᵀJ)⁻¹, inflated by (1+ρ₁)/(1−ρ₁) for positive lag-1 residual autocorrelation; delta method on the logarithm for HLC and time constants; ±1.96σ");
     report["caution"] = serde_json::json!(dwell_studies::CAUTION);
 
-    let mut csv = String::from("time,measured_indoor_c,fitted_indoor_c,residual_k,outdoor_c,heating_w\n");
+    let mut csv =
+        String::from("time,measured_indoor_c,fitted_indoor_c,residual_k,outdoor_c,heating_w\n");
     for k in 0..data.len() {
         let m = data.indoor_c[k];
-        let (ms, rs) = if m.is_nan() { (String::new(), String::new()) } else { (format!("{m:.3}"), format!("{:.4}", m - cal.fitted_c[k])) };
+        let (ms, rs) = if m.is_nan() {
+            (String::new(), String::new())
+        } else {
+            (format!("{m:.3}"), format!("{:.4}", m - cal.fitted_c[k]))
+        };
         csv.push_str(&format!(
             "{},{ms},{:.3},{rs},{:.2},{:.1}\n",
             dwell_weather::format_stamp(&data.time(k)),
@@ -75,16 +90,38 @@ pub fn run(args: CalibrateArgs) -> anyhow::Result<()> {
             data.heating_w[k]
         ));
     }
-    let hours: Vec<f64> = (0..data.len()).map(|k| k as f64 * data.step_s / 3600.0).collect();
-    let (mx, my): (Vec<f64>, Vec<f64>) = hours.iter().zip(data.indoor_c.iter()).filter(|(_, y)| !y.is_nan()).map(|(x, y)| (*x, *y)).unzip();
+    let hours: Vec<f64> = (0..data.len())
+        .map(|k| k as f64 * data.step_s / 3600.0)
+        .collect();
+    let (mx, my): (Vec<f64>, Vec<f64>) = hours
+        .iter()
+        .zip(data.indoor_c.iter())
+        .filter(|(_, y)| !y.is_nan())
+        .map(|(x, y)| (*x, *y))
+        .unzip();
     let chart = Chart::Line(LineChart {
-        title: format!("Measured and fitted indoor temperature (order {})", cal.order),
+        title: format!(
+            "Measured and fitted indoor temperature (order {})",
+            cal.order
+        ),
         x_label: format!("time (UTC{})", data.start.offset()),
         y_label: "temperature (°C)".into(),
         time_origin: Some(data.start.naive_local()),
         series: vec![
-            Series { label: "measured".into(), x: mx, y: my, stroke: Stroke::Solid, colour: Some(0) },
-            Series { label: "fitted".into(), x: hours.clone(), y: cal.fitted_c.clone(), stroke: Stroke::Dashed, colour: Some(1) },
+            Series {
+                label: "measured".into(),
+                x: mx,
+                y: my,
+                stroke: Stroke::Solid,
+                colour: Some(0),
+            },
+            Series {
+                label: "fitted".into(),
+                x: hours.clone(),
+                y: cal.fitted_c.clone(),
+                stroke: Stroke::Dashed,
+                colour: Some(1),
+            },
         ],
         bands: vec![],
         thresholds: vec![],
@@ -94,23 +131,54 @@ pub fn run(args: CalibrateArgs) -> anyhow::Result<()> {
     let svg = dwell_charts::render_svg(&chart)?;
 
     let out = OutputDir::create(&args.out)?;
-    out.write("calibration.json", serde_json::to_string_pretty(&report)?.as_bytes())?;
-    out.write("model.json", serde_json::to_string_pretty(&model)?.as_bytes())?;
+    out.write(
+        "calibration.json",
+        serde_json::to_string_pretty(&report)?.as_bytes(),
+    )?;
+    out.write(
+        "model.json",
+        serde_json::to_string_pretty(&model)?.as_bytes(),
+    )?;
     out.write("fitted.csv", csv.as_bytes())?;
     out.write("fit.svg", svg.as_bytes())?;
 
     if !args.quiet {
         let h = &cal.hlc_w_k;
-        println!("{}: {} rows at {:.0} min, order {} ({} parameters)", args.data.display(), data.len(), data.step_s / 60.0, cal.order, cal.parameters.len());
-        println!("heat-loss coefficient  {:.1} W/K  (95 % interval {:.1} … {:.1})", h.value, h.lo95, h.hi95);
+        println!(
+            "{}: {} rows at {:.0} min, order {} ({} parameters)",
+            args.data.display(),
+            data.len(),
+            data.step_s / 60.0,
+            cal.order,
+            cal.parameters.len()
+        );
+        println!(
+            "heat-loss coefficient  {:.1} W/K  (95 % interval {:.1} … {:.1})",
+            h.value, h.lo95, h.hi95
+        );
         for (i, t) in cal.time_constants_h.iter().enumerate() {
-            println!("time constant {}        {:.1} h  (95 % interval {:.1} … {:.1})", i + 1, t.value, t.lo95, t.hi95);
+            println!(
+                "time constant {}        {:.1} h  (95 % interval {:.1} … {:.1})",
+                i + 1,
+                t.value,
+                t.lo95,
+                t.hi95
+            );
         }
         if let Some(a) = &cal.aperture_m2 {
-            println!("solar aperture         {:.2} m²  (95 % interval {:.2} … {:.2})", a.value, a.lo95, a.hi95);
+            println!(
+                "solar aperture         {:.2} m²  (95 % interval {:.2} … {:.2})",
+                a.value, a.lo95, a.hi95
+            );
         }
-        println!("unmeasured gain        {:.0} W  (95 % interval {:.0} … {:.0})", cal.gain_w.value, cal.gain_w.lo95, cal.gain_w.hi95);
-        println!("fit: RMSE {:.3} K, bias {:+.3} K, lag-1 autocorrelation {:.2}", cal.residuals.rmse_k, cal.residuals.mean_k, cal.residuals.lag1_autocorrelation);
+        println!(
+            "unmeasured gain        {:.0} W  (95 % interval {:.0} … {:.0})",
+            cal.gain_w.value, cal.gain_w.lo95, cal.gain_w.hi95
+        );
+        println!(
+            "fit: RMSE {:.3} K, bias {:+.3} K, lag-1 autocorrelation {:.2}",
+            cal.residuals.rmse_k, cal.residuals.mean_k, cal.residuals.lag1_autocorrelation
+        );
         for w in &cal.warnings {
             println!("warning: {w}");
         }

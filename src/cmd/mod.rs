@@ -12,3 +12,4 @@ pub mod setback;
 pub mod outage;
 pub mod compare;
 pub mod calibrate;
+pub mod sweep;

@@ -70,7 +70,8 @@ impl MeasuredData {
 
     /// Stamp of instant `k`.
     pub fn time(&self, k: usize) -> DateTime<FixedOffset> {
-        self.start + chrono::Duration::milliseconds((k as f64 * self.step_s * 1000.0).round() as i64)
+        self.start
+            + chrono::Duration::milliseconds((k as f64 * self.step_s * 1000.0).round() as i64)
     }
 
     /// Duration covered (s).
@@ -107,7 +108,11 @@ impl MeasuredData {
         }
         s.push('\n');
         for k in 0..self.len() {
-            let ti = if self.indoor_c[k].is_nan() { String::new() } else { format!("{:.2}", self.indoor_c[k]) };
+            let ti = if self.indoor_c[k].is_nan() {
+                String::new()
+            } else {
+                format!("{:.2}", self.indoor_c[k])
+            };
             s.push_str(&format!(
                 "{},{ti},{:.2},{:.1}",
                 dwell_weather::format_stamp(&self.time(k)),
@@ -125,8 +130,10 @@ impl MeasuredData {
 
 /// Reads a measured-data file (see the module docs).
 pub fn read_measured(path: &Path) -> Result<MeasuredData, CalibrateError> {
-    let text = std::fs::read_to_string(path)
-        .map_err(|source| CalibrateError::Io { path: path.display().to_string(), source })?;
+    let text = std::fs::read_to_string(path).map_err(|source| CalibrateError::Io {
+        path: path.display().to_string(),
+        source,
+    })?;
     parse_measured(&text, &path.display().to_string())
 }
 
@@ -145,7 +152,11 @@ const COLS: [(&str, f64, f64, &str); 4] = [
 
 /// Parses measured data from text; `source_name` names the file in messages.
 pub fn parse_measured(text: &str, source_name: &str) -> Result<MeasuredData, CalibrateError> {
-    let at = |line: usize, message: String| CalibrateError::At { source_name: source_name.to_string(), line, message };
+    let at = |line: usize, message: String| CalibrateError::At {
+        source_name: source_name.to_string(),
+        line,
+        message,
+    };
     let header_line = text
         .lines()
         .position(|l| !l.trim_start().starts_with('#') && !l.trim().is_empty())
@@ -178,7 +189,13 @@ pub fn parse_measured(text: &str, source_name: &str) -> Result<MeasuredData, Cal
         }
     }
     if time_idx.is_none() {
-        errors.push(at(header_line, format!("no column `time` in the header (found: {})", headers.join(", "))));
+        errors.push(at(
+            header_line,
+            format!(
+                "no column `time` in the header (found: {})",
+                headers.join(", ")
+            ),
+        ));
     }
     for h in &headers {
         if h != "time" && !COLS.iter().any(|c| c.0 == h) {
@@ -198,7 +215,10 @@ pub fn parse_measured(text: &str, source_name: &str) -> Result<MeasuredData, Cal
             Ok(r) => r,
             Err(e) => {
                 let line = e.position().map(|p| p.line() as usize).unwrap_or(0);
-                errors.push(at(line, format!("{e}; every row needs one field per header column")));
+                errors.push(at(
+                    line,
+                    format!("{e}; every row needs one field per header column"),
+                ));
                 continue;
             }
         };
@@ -233,11 +253,20 @@ pub fn parse_measured(text: &str, source_name: &str) -> Result<MeasuredData, Cal
         rows.push(Row { line, t, v });
     }
     CalibrateError::collect(source_name, errors)?;
-    let data_err = |message: String| CalibrateError::Data { source_name: source_name.to_string(), message };
+    let data_err = |message: String| CalibrateError::Data {
+        source_name: source_name.to_string(),
+        message,
+    };
     if rows.len() < 3 {
-        return Err(data_err(format!("{} data rows; a fit needs at least days of data at 5 min … 1 h intervals", rows.len())));
+        return Err(data_err(format!(
+            "{} data rows; a fit needs at least days of data at 5 min … 1 h intervals",
+            rows.len()
+        )));
     }
-    let diffs: Vec<i64> = rows.windows(2).map(|w| (w[1].t - w[0].t).num_seconds()).collect();
+    let diffs: Vec<i64> = rows
+        .windows(2)
+        .map(|w| (w[1].t - w[0].t).num_seconds())
+        .collect();
     let step = *diffs.iter().min().expect("two rows");
     if (step as f64) < MIN_INTERVAL_S || (step as f64) > MAX_INTERVAL_S {
         let k = diffs.iter().position(|d| *d == step).expect("min");
@@ -270,7 +299,10 @@ pub fn parse_measured(text: &str, source_name: &str) -> Result<MeasuredData, Cal
         }
         let known: Vec<usize> = (0..n).filter(|&k| grid[k][c].is_some()).collect();
         if known.is_empty() {
-            return Err(data_err(format!("column `{}` has no values; a fit needs it", COLS[c].0)));
+            return Err(data_err(format!(
+                "column `{}` has no values; a fit needs it",
+                COLS[c].0
+            )));
         }
         let mut s = vec![f64::NAN; n];
         for &k in &known {
@@ -280,7 +312,11 @@ pub fn parse_measured(text: &str, source_name: &str) -> Result<MeasuredData, Cal
         let first = known[0];
         let last = *known.last().expect("known");
         if first > max_gap || n - 1 - last > max_gap {
-            errors.push(data_err(format!("column `{}` is missing for more than {} h at the start or end; trim those rows", COLS[c].0, MAX_INPUT_GAP_S / 3600.0)));
+            errors.push(data_err(format!(
+                "column `{}` is missing for more than {} h at the start or end; trim those rows",
+                COLS[c].0,
+                MAX_INPUT_GAP_S / 3600.0
+            )));
             continue;
         }
         for k in 0..first {
@@ -367,14 +403,19 @@ mod tests {
         let ok5 = fast.replace(":04", ":05").replace(":08", ":10");
         assert_eq!(parse_measured(&ok5, "f.csv").unwrap().step_s, 300.0);
         let slow = "time,indoor_c,outdoor_c,heating_w\n2025-01-06T00:00+00:00,20,5,1\n2025-01-06T02:00+00:00,20,5,1\n2025-01-06T04:00+00:00,20,5,1\n";
-        assert!(parse_measured(slow, "s.csv").unwrap_err().to_string().contains("interval of 7200 s"));
+        assert!(parse_measured(slow, "s.csv")
+            .unwrap_err()
+            .to_string()
+            .contains("interval of 7200 s"));
         let ok60 = slow.replace("T02", "T01").replace("T04", "T02");
         assert_eq!(parse_measured(&ok60, "s.csv").unwrap().step_s, 3600.0);
     }
 
     #[test]
     fn unknown_and_missing_columns() {
-        let e = parse_measured("time,indoor,outdoor_c\n", "h.csv").unwrap_err().to_string();
+        let e = parse_measured("time,indoor,outdoor_c\n", "h.csv")
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("h.csv:1: no column `indoor_c`"), "{e}");
         assert!(e.contains("unknown column `indoor`"), "{e}");
     }
@@ -383,6 +424,9 @@ mod tests {
     fn long_input_gap_is_an_error() {
         let t = "time,indoor_c,outdoor_c,heating_w\n2025-01-06T00:00+00:00,20,5,1\n2025-01-06T01:00+00:00,20,,1\n2025-01-07T01:00+00:00,20,5,1\n";
         let e = parse_measured(t, "g.csv").unwrap_err().to_string();
-        assert!(e.contains("g.csv:4: column `outdoor_c` is missing for 24.0 h (since line 2)"), "{e}");
+        assert!(
+            e.contains("g.csv:4: column `outdoor_c` is missing for 24.0 h (since line 2)"),
+            "{e}"
+        );
     }
 }

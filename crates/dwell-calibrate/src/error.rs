@@ -56,7 +56,10 @@ impl CalibrateError {
         match errors.len() {
             0 => Ok(()),
             1 => Err(errors.pop().expect("one")),
-            _ => Err(CalibrateError::Several { source_name: source_name.to_string(), problems: errors }),
+            _ => Err(CalibrateError::Several {
+                source_name: source_name.to_string(),
+                problems: errors,
+            }),
         }
     }
 }

@@ -147,7 +147,12 @@ fn one_node_start(d: &MeasuredData) -> (f64, f64, f64, f64) {
         rhs.push(sp);
         a = b;
     }
-    let mean_dt = mean(&valid.iter().map(|&k| d.indoor_c[k] - d.outdoor_c[k]).collect::<Vec<_>>());
+    let mean_dt = mean(
+        &valid
+            .iter()
+            .map(|&k| d.indoor_c[k] - d.outdoor_c[k])
+            .collect::<Vec<_>>(),
+    );
     let fallback_h = (mean(&d.heating_w) / mean_dt.max(1.0)).clamp(5.0, 5000.0);
     let q = if solar { 4 } else { 3 };
     if rows.len() > q {
@@ -157,7 +162,11 @@ fn one_node_start(d: &MeasuredData) -> (f64, f64, f64, f64) {
             let (c, h) = (x[0], x[1]);
             let (aper, gain) = if solar { (x[2], x[3]) } else { (0.0, x[2]) };
             if h.is_finite() && h > 1.0 && h < 1e5 {
-                let c = if c.is_finite() && c > h * 3600.0 && c < h * 3600.0 * 1000.0 { c } else { h * 30.0 * 3600.0 };
+                let c = if c.is_finite() && c > h * 3600.0 && c < h * 3600.0 * 1000.0 {
+                    c
+                } else {
+                    h * 30.0 * 3600.0
+                };
                 return (h, c, aper.clamp(0.0, 100.0), gain.clamp(-5.0 * h, 5.0 * h));
             }
         }
@@ -219,16 +228,24 @@ fn inverse_keeping_null_directions(jtj: &DMatrix<f64>) -> DMatrix<f64> {
     let scaled = DMatrix::from_fn(p, p, |i, j| jtj[(i, j)] / (d[i] * d[j]));
     let eig = scaled.symmetric_eigen();
     let lmax = eig.eigenvalues.amax().max(1e-300);
-    let inv_l = eig.eigenvalues.map(|l| 1.0 / if l > 1e-13 * lmax { l } else { 1e-300 });
+    let inv_l = eig
+        .eigenvalues
+        .map(|l| 1.0 / if l > 1e-13 * lmax { l } else { 1e-300 });
     let inv = &eig.eigenvectors * DMatrix::from_diagonal(&inv_l) * eig.eigenvectors.transpose();
     DMatrix::from_fn(p, p, |i, j| inv[(i, j)] / (d[i] * d[j]))
 }
 
 /// Fits a structure of `order` to `data` and reports estimates, intervals and diagnostics.
-pub fn calibrate(data: &MeasuredData, order: Order, opts: &FitOptions) -> Result<Calibration, CalibrateError> {
+pub fn calibrate(
+    data: &MeasuredData,
+    order: Order,
+    opts: &FitOptions,
+) -> Result<Calibration, CalibrateError> {
     let layout = Layout::new(order, data.solar_w_m2.is_some());
     let p = layout.len();
-    let valid: Vec<usize> = (1..data.len()).filter(|&k| !data.indoor_c[k].is_nan()).collect();
+    let valid: Vec<usize> = (1..data.len())
+        .filter(|&k| !data.indoor_c[k].is_nan())
+        .collect();
     if valid.len() < p + 10 {
         return Err(CalibrateError::Data {
             source_name: data.source.clone(),
@@ -269,7 +286,10 @@ pub fn calibrate(data: &MeasuredData, order: Order, opts: &FitOptions) -> Result
         let th0 = layout.theta(&s);
         if let Some(res) = levenberg_marquardt(&mut resid, &th0, opts.max_iter) {
             let ss: f64 = res.residuals.iter().map(|x| x * x).sum();
-            if best.as_ref().is_none_or(|b| ss < b.residuals.iter().map(|x| x * x).sum()) {
+            if best
+                .as_ref()
+                .is_none_or(|b| ss < b.residuals.iter().map(|x| x * x).sum())
+            {
                 best = Some(res);
             }
         }
@@ -305,11 +325,19 @@ pub fn calibrate(data: &MeasuredData, order: Order, opts: &FitOptions) -> Result
     };
     let log_est = |value: f64, g: &[f64]| {
         let s = var_of(g).sqrt();
-        Estimate { value, lo95: value * (-Z95 * s).exp(), hi95: value * (Z95 * s).exp() }
+        Estimate {
+            value,
+            lo95: value * (-Z95 * s).exp(),
+            hi95: value * (Z95 * s).exp(),
+        }
     };
     let lin_est = |value: f64, idx: usize| {
         let s = cov[(idx, idx)].max(0.0).sqrt();
-        Estimate { value, lo95: value - Z95 * s, hi95: value + Z95 * s }
+        Estimate {
+            value,
+            lo95: value - Z95 * s,
+            hi95: value + Z95 * s,
+        }
     };
     // HLC: ∂ln HLC/∂ln h_ie = h_eo/(h_ie + h_eo), ∂/∂ln h_eo = h_ie/(h_ie + h_eo).
     let mut g = vec![0.0; p];
@@ -339,11 +367,23 @@ pub fn calibrate(data: &MeasuredData, order: Order, opts: &FitOptions) -> Result
         .zip(grads.iter())
         .map(|(t, g)| {
             let e = log_est(*t, g);
-            Estimate { value: e.value / 3600.0, lo95: e.lo95 / 3600.0, hi95: e.hi95 / 3600.0 }
+            Estimate {
+                value: e.value / 3600.0,
+                lo95: e.lo95 / 3600.0,
+                hi95: e.hi95 / 3600.0,
+            }
         })
         .collect();
-    let idx = |name: &str| layout.names.iter().position(|n| *n == name).expect("parameter in layout");
-    let aperture = layout.solar.then(|| lin_est(params.aperture_m2, idx("aperture_m2")));
+    let idx = |name: &str| {
+        layout
+            .names
+            .iter()
+            .position(|n| *n == name)
+            .expect("parameter in layout")
+    };
+    let aperture = layout
+        .solar
+        .then(|| lin_est(params.aperture_m2, idx("aperture_m2")));
     let gain = lin_est(params.gain_w, idx("gain_w"));
     let mut parameters = Vec::new();
     let mut unidentified = Vec::new();
@@ -364,7 +404,12 @@ pub fn calibrate(data: &MeasuredData, order: Order, opts: &FitOptions) -> Result
         if !identified || !se.is_finite() {
             unidentified.push(name.to_string());
         }
-        parameters.push(ParamReport { name: name.to_string(), theta: th[i], std_error: se, identified: identified && se.is_finite() });
+        parameters.push(ParamReport {
+            name: name.to_string(),
+            theta: th[i],
+            std_error: se,
+            identified: identified && se.is_finite(),
+        });
     }
     let hlc_rel = (hlc.hi95 / hlc.lo95).ln() / (2.0 * Z95);
     if hlc_rel > 0.25 {

@@ -95,7 +95,10 @@ where
                 }
                 let rho = (f0 - f1) / pred.max(1e-300);
                 if rho > 0.0 {
-                    let small_step = delta.iter().zip(th.iter()).all(|(d, t)| d.abs() <= 1e-9 * (t.abs() + 1e-6));
+                    let small_step = delta
+                        .iter()
+                        .zip(th.iter())
+                        .all(|(d, t)| d.abs() <= 1e-9 * (t.abs() + 1e-6));
                     let small_gain = (f0 - f1) <= 1e-12 * f0;
                     th = cand;
                     r = rc;
@@ -121,7 +124,13 @@ where
             break;
         }
     }
-    Some(LmResult { theta: th, residuals: r, jacobian: j, iterations: it, converged })
+    Some(LmResult {
+        theta: th,
+        residuals: r,
+        jacobian: j,
+        iterations: it,
+        converged,
+    })
 }
 
 #[cfg(test)]
@@ -131,8 +140,17 @@ mod tests {
     #[test]
     fn rosenbrock_minimum() {
         // Rosenbrock as least squares r = (10(y − x²), 1 − x): minimum at (1, 1) (analytic).
-        let res = levenberg_marquardt(|t| Some(vec![10.0 * (t[1] - t[0] * t[0]), 1.0 - t[0]]), &[-1.2, 1.0], 200).unwrap();
-        assert!((res.theta[0] - 1.0).abs() < 1e-6 && (res.theta[1] - 1.0).abs() < 1e-6, "{:?}", res.theta);
+        let res = levenberg_marquardt(
+            |t| Some(vec![10.0 * (t[1] - t[0] * t[0]), 1.0 - t[0]]),
+            &[-1.2, 1.0],
+            200,
+        )
+        .unwrap();
+        assert!(
+            (res.theta[0] - 1.0).abs() < 1e-6 && (res.theta[1] - 1.0).abs() < 1e-6,
+            "{:?}",
+            res.theta
+        );
         assert!(res.converged);
     }
 
@@ -141,7 +159,13 @@ mod tests {
         // y = 3·exp(−0.5 t) sampled exactly: recovered to 1e-6 (analytic).
         let ts: Vec<f64> = (0..20).map(|i| i as f64 * 0.25).collect();
         let res = levenberg_marquardt(
-            |t| Some(ts.iter().map(|x| t[0] * (-t[1] * x).exp() - 3.0 * (-0.5 * x).exp()).collect()),
+            |t| {
+                Some(
+                    ts.iter()
+                        .map(|x| t[0] * (-t[1] * x).exp() - 3.0 * (-0.5 * x).exp())
+                        .collect(),
+                )
+            },
             &[1.0, 0.1],
             200,
         )

@@ -56,7 +56,8 @@ pub fn model_file(cal: &Calibration, opts: &ModelFileOptions, source: &str) -> V
     }
     let mut network = json!({"nodes": nodes, "links": links});
     if p.gain_w > 0.0 {
-        network["heat_inputs"] = json!([{"id": "unmeasured_gains", "node": "house", "power_w": p.gain_w}]);
+        network["heat_inputs"] =
+            json!([{"id": "unmeasured_gains", "node": "house", "power_w": p.gain_w}]);
     }
     let mut m = json!({
         "name": opts.name,

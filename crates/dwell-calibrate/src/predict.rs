@@ -21,7 +21,11 @@ pub fn predict(p: &RcParams, data: &MeasuredData) -> Result<Vec<f64>, CalibrateE
 }
 
 /// As [`predict`], into `out` (length `data.len()`).
-pub fn predict_into(p: &RcParams, data: &MeasuredData, out: &mut [f64]) -> Result<(), CalibrateError> {
+pub fn predict_into(
+    p: &RcParams,
+    data: &MeasuredData,
+    out: &mut [f64],
+) -> Result<(), CalibrateError> {
     let sys = p.system()?;
     let disc = Discretization::new(&sys, data.step_s, Route::Modal)?;
     let n = sys.states();
@@ -74,7 +78,10 @@ mod tests {
         };
         let mut text = String::from("time,indoor_c,outdoor_c,heating_w\n");
         for h in 0..=8 {
-            text.push_str(&format!("2025-01-06T{h:02}:00+00:00,{},0,0\n", if h == 0 { "20" } else { "" }));
+            text.push_str(&format!(
+                "2025-01-06T{h:02}:00+00:00,{},0,0\n",
+                if h == 0 { "20" } else { "" }
+            ));
         }
         let d = crate::data::parse_measured(&text, "t").unwrap();
         let y = predict(&p, &d).unwrap();

@@ -50,7 +50,15 @@ pub fn autocorrelation(e: &[f64], lag: usize) -> f64 {
 
 /// Statistics of `data.indoor_c − fitted` over instants 1.. with a reading.
 pub fn residual_stats(data: &MeasuredData, fitted: &[f64], per_day: usize) -> ResidualStats {
-    let e: Vec<f64> = (0..data.len()).map(|k| if k == 0 { f64::NAN } else { data.indoor_c[k] - fitted[k] }).collect();
+    let e: Vec<f64> = (0..data.len())
+        .map(|k| {
+            if k == 0 {
+                f64::NAN
+            } else {
+                data.indoor_c[k] - fitted[k]
+            }
+        })
+        .collect();
     let v: Vec<f64> = e.iter().copied().filter(|x| !x.is_nan()).collect();
     let n = v.len().max(1) as f64;
     let lag1 = autocorrelation(&e, 1);
@@ -72,7 +80,9 @@ mod tests {
     #[test]
     fn autocorrelation_of_alternating_and_constant_trend() {
         // +1, −1, +1, …: lag-1 autocorrelation −1 (definition), lag 2 +1.
-        let e: Vec<f64> = (0..100).map(|k| if k % 2 == 0 { 1.0 } else { -1.0 }).collect();
+        let e: Vec<f64> = (0..100)
+            .map(|k| if k % 2 == 0 { 1.0 } else { -1.0 })
+            .collect();
         assert!((autocorrelation(&e, 1) + 1.0).abs() < 0.02);
         assert!((autocorrelation(&e, 2) - 1.0).abs() < 0.03);
         let mut g = e.clone();

@@ -127,7 +127,12 @@ impl RcParams {
             }
         }
         u[(0, 1)] = 1.0;
-        RcSystem::new(caps, k, u, vec![InputKind::Temperature, InputKind::HeatFlow])
+        RcSystem::new(
+            caps,
+            k,
+            u,
+            vec![InputKind::Temperature, InputKind::HeatFlow],
+        )
     }
 }
 
@@ -148,7 +153,14 @@ impl Layout {
         let mut names = match order {
             Order::One => vec!["ln_h_w_k", "ln_c_i_j_k"],
             Order::Two => vec!["ln_h_ie_w_k", "ln_h_eo_w_k", "ln_c_i_j_k", "ln_c_e_j_k"],
-            Order::Three => vec!["ln_h_ie_w_k", "ln_h_eo_w_k", "ln_h_im_w_k", "ln_c_i_j_k", "ln_c_e_j_k", "ln_c_m_j_k"],
+            Order::Three => vec![
+                "ln_h_ie_w_k",
+                "ln_h_eo_w_k",
+                "ln_h_im_w_k",
+                "ln_c_i_j_k",
+                "ln_c_e_j_k",
+                "ln_c_m_j_k",
+            ],
         };
         if solar {
             names.push("aperture_m2");
@@ -162,7 +174,11 @@ impl Layout {
                 names.push("t_m0_c");
             }
         }
-        Layout { order, solar, names }
+        Layout {
+            order,
+            solar,
+            names,
+        }
     }
 
     /// Number of parameters.
@@ -217,7 +233,12 @@ impl Layout {
     pub fn theta(&self, p: &RcParams) -> Vec<f64> {
         let mut th = match self.order {
             Order::One => vec![p.h_ie_w_k.ln(), p.c_i_j_k.ln()],
-            Order::Two => vec![p.h_ie_w_k.ln(), p.h_eo_w_k.ln(), p.c_i_j_k.ln(), p.c_e_j_k.ln()],
+            Order::Two => vec![
+                p.h_ie_w_k.ln(),
+                p.h_eo_w_k.ln(),
+                p.c_i_j_k.ln(),
+                p.c_e_j_k.ln(),
+            ],
             Order::Three => vec![
                 p.h_ie_w_k.ln(),
                 p.h_eo_w_k.ln(),
@@ -269,7 +290,14 @@ mod tests {
     fn hlc_of_series_envelope() {
         // Two conductances in series: 1/(1/150 + 1/900) = 128.571… W/K (analytic).
         let lay = Layout::new(Order::Two, false);
-        let p = lay.params(&[150f64.ln(), 900f64.ln(), 1e6f64.ln(), 1e7f64.ln(), 0.0, 10.0]);
+        let p = lay.params(&[
+            150f64.ln(),
+            900f64.ln(),
+            1e6f64.ln(),
+            1e7f64.ln(),
+            0.0,
+            10.0,
+        ]);
         assert!((p.hlc_w_k() - 128.571_428_571).abs() < 1e-6);
     }
 }

@@ -72,7 +72,10 @@ pub fn synth_inputs(spec: &SynthSpec) -> MeasuredData {
         let t = k as f64 * spec.step_s;
         let hour = (t / 3600.0) % 24.0;
         anomaly = a * anomaly + (1.0 - a * a).sqrt() * 3.0 * unit.sample(&mut rng);
-        outdoor.push(spec.outdoor_mean_c + anomaly - 3.0 * (2.0 * std::f64::consts::PI * (hour - 3.0) / 24.0).cos());
+        outdoor.push(
+            spec.outdoor_mean_c + anomaly
+                - 3.0 * (2.0 * std::f64::consts::PI * (hour - 3.0) / 24.0).cos(),
+        );
         if t >= next_switch {
             level = [0.0, 1.0 / 3.0, 2.0 / 3.0, 1.0][rng.random_range(0..4)];
             next_switch = t + 3600.0 * rng.random_range(1..=8) as f64;
@@ -82,7 +85,11 @@ pub fn synth_inputs(spec: &SynthSpec) -> MeasuredData {
             cloud = rng.random_range(0.2..1.0);
         }
         let sun = (std::f64::consts::PI * (hour - 8.0) / 8.0).sin().max(0.0);
-        solar.push(if (8.0..16.0).contains(&hour) { 350.0 * cloud * sun } else { 0.0 });
+        solar.push(if (8.0..16.0).contains(&hour) {
+            350.0 * cloud * sun
+        } else {
+            0.0
+        });
     }
     MeasuredData {
         source: "invented data".into(),
@@ -100,16 +107,21 @@ pub fn synth_inputs(spec: &SynthSpec) -> MeasuredData {
 /// Invented measured data: inputs from [`synth_inputs`], indoor temperature from `truth`
 /// starting at `indoor0_c` (and `truth.initial_c` for the masses), plus noise and gaps.
 /// Returns the data and the noise-free indoor temperature.
-pub fn synth_measured(truth: &RcParams, indoor0_c: f64, spec: &SynthSpec) -> Result<(MeasuredData, Vec<f64>), CalibrateError> {
+pub fn synth_measured(
+    truth: &RcParams,
+    indoor0_c: f64,
+    spec: &SynthSpec,
+) -> Result<(MeasuredData, Vec<f64>), CalibrateError> {
     let mut d = synth_inputs(spec);
     d.indoor_c[0] = indoor0_c;
     let clean = predict(truth, &d)?;
     let mut rng = ChaCha8Rng::seed_from_u64(spec.seed.wrapping_add(0x5eed));
-    let noise = Normal::new(0.0, spec.noise_sd_k.max(0.0)).map_err(|e| CalibrateError::Option(e.to_string()))?;
-    for k in 0..d.len() {
-        d.indoor_c[k] = clean[k] + noise.sample(&mut rng);
+    let noise = Normal::new(0.0, spec.noise_sd_k.max(0.0))
+        .map_err(|e| CalibrateError::Option(e.to_string()))?;
+    for (k, (m, c)) in d.indoor_c.iter_mut().zip(clean.iter()).enumerate() {
+        *m = c + noise.sample(&mut rng);
         if k > 0 && rng.random::<f64>() < spec.missing_fraction {
-            d.indoor_c[k] = f64::NAN;
+            *m = f64::NAN;
         }
     }
     Ok((d, clean))

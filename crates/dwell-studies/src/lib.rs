@@ -26,3 +26,4 @@ pub mod outage;
 pub mod compare;
 #[cfg(test)]
 mod monotone_tests;
+pub mod sweep;
