@@ -85,19 +85,19 @@ head = "time,air_c,ghi_w_m2,dhi_w_m2\n"
 def rows(vals):
     return "".join(f"2025-01-01T{h:02d}:00+00:00,{v}\n" for h, v in vals)
 wc = {
- "missing-hour": (head + rows([(0,"1,0,0"),(1,"1,0,0"),(3,"1,0,0")]), ["line 4"]),
- "duplicate-hour": (head + rows([(0,"1,0,0"),(1,"1,0,0"),(1,"1,0,0")]), ["line 4", "duplicate"]),
- "out-of-order": (head + rows([(0,"1,0,0"),(2,"1,0,0"),(1,"1,0,0")]), ["line 4"]),
- "nan-cell": (head + rows([(0,"1,0,0"),(1,"NaN,0,0"),(2,"1,0,0")]), ["line 3", "air_c"]),
- "empty-cell": (head + rows([(0,"1,0,0"),(1,",0,0"),(2,"1,0,0")]), ["line 3", "air_c"]),
- "air-too-hot": (head + rows([(0,"1,0,0"),(1,"75,0,0"),(2,"1,0,0")]), ["line 3", "air_c"]),
- "diffuse-above-global": (head + rows([(10,"1,100,300"),(11,"1,100,50")]), ["line 2", "diffuse"]),
- "irradiance-negative": (head + rows([(10,"1,-50,0"),(11,"1,100,50")]), ["line 2", "ghi_w_m2"]),
- "dst-jump": (head + "2025-03-30T00:00+01:00,1,0,0\n2025-03-30T01:00+01:00,1,0,0\n2025-03-30T03:00+02:00,1,0,0\n", ["line 4"]),
- "no-offset": (head + "2025-01-01T00:00,1,0,0\n2025-01-01T01:00,1,0,0\n", ["line 2"]),
+ "missing-hour": (head + rows([(0,"1,0,0"),(1,"1,0,0"),(3,"1,0,0")]), [".csv:4:"]),
+ "duplicate-hour": (head + rows([(0,"1,0,0"),(1,"1,0,0"),(1,"1,0,0")]), [".csv:4:", "duplicate"]),
+ "out-of-order": (head + rows([(0,"1,0,0"),(2,"1,0,0"),(1,"1,0,0")]), [".csv:4:"]),
+ "nan-cell": (head + rows([(0,"1,0,0"),(1,"NaN,0,0"),(2,"1,0,0")]), [".csv:3:", "air_c"]),
+ "empty-cell": (head + rows([(0,"1,0,0"),(1,",0,0"),(2,"1,0,0")]), [".csv:3:", "air_c"]),
+ "air-too-hot": (head + rows([(0,"1,0,0"),(1,"75,0,0"),(2,"1,0,0")]), [".csv:3:", "air_c"]),
+ "diffuse-above-global": (head + rows([(10,"1,100,300"),(11,"1,100,50")]), [".csv:2:", "diffuse"]),
+ "irradiance-negative": (head + rows([(10,"1,-50,0"),(11,"1,100,50")]), [".csv:2:", "ghi_w_m2"]),
+ "dst-jump": (head + "2025-03-30T00:00+01:00,1,0,0\n2025-03-30T01:00+01:00,1,0,0\n2025-03-30T03:00+02:00,1,0,0\n", [".csv:4:"]),
+ "no-offset": (head + "2025-01-01T00:00,1,0,0\n2025-01-01T01:00,1,0,0\n", [".csv:2:"]),
  "unknown-column": ("time,air_c,humidity\n2025-01-01T00:00+00:00,1,80\n2025-01-01T01:00+00:00,1,80\n", ["humidity"]),
  "no-air-column": ("time,ghi_w_m2\n2025-01-01T00:00+00:00,0\n2025-01-01T01:00+00:00,0\n", ["air_c"]),
- "bad-number": (head + rows([(0,"1,0,0"),(1,"warm,0,0")]), ["line 3"]),
+ "bad-number": (head + rows([(0,"1,0,0"),(1,"warm,0,0")]), [".csv:3:"]),
 }
 for n, (text, exp) in wc.items():
     (W / f"{n}.csv").write_text(text)
@@ -121,9 +121,9 @@ def mrows(n, f=lambda i: f"20,5,500"):
     return "".join(f"2025-01-01T{(i*15)//60:02d}:{(i*15)%60:02d}+00:00,{f(i)}\n" for i in range(n))
 mc = {
  "missing-heating-column": ("time,indoor_c,outdoor_c\n" + "".join(f"2025-01-01T{h:02d}:00+00:00,20,5\n" for h in range(30)), ["heating_w"]),
- "nan-indoor": (mh + mrows(40, lambda i: "NaN,5,500" if i == 7 else "20,5,500"), ["line 9"]),
+ "nan-indoor": (mh + mrows(40, lambda i: "NaN,5,500" if i == 7 else "20,5,500"), [".csv:9:"]),
  "duplicate-stamp": (mh + mrows(5) + mrows(40)[len(mrows(4)):], ["csv:7:", "remove duplicates"]),
- "negative-heating": (mh + mrows(40, lambda i: "20,5,-300" if i == 3 else "20,5,500"), ["line 5", "heating_w"]),
+ "negative-heating": (mh + mrows(40, lambda i: "20,5,-300" if i == 3 else "20,5,500"), [".csv:5:", "heating_w"]),
  "irregular-interval": (mh + "2025-01-01T00:00+00:00,20,5,500\n2025-01-01T00:15+00:00,20,5,500\n2025-01-01T00:22+00:00,20,5,500\n", ["regular grid"]),
 }
 for n, (text, exp) in mc.items():

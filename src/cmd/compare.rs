@@ -3,7 +3,6 @@
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use chrono::NaiveDate;
 use dwell_studies::compare::{compare_with_progress, grid, patched, Comparison, Variant};
 use dwell_studies::SimOptions;
 use serde_json::Value;
@@ -29,18 +28,8 @@ pub struct CompareArgs {
     /// Price of purchased energy for every heater (money/kWh); default the model's prices
     #[arg(long)]
     pub price: Option<f64>,
-    /// Weather file; default the built-in invented climate
-    #[arg(long)]
-    pub weather: Option<PathBuf>,
-    /// First local day, YYYY-MM-DD
-    #[arg(long)]
-    pub from: Option<NaiveDate>,
-    /// Last local day, inclusive, YYYY-MM-DD
-    #[arg(long)]
-    pub to: Option<NaiveDate>,
-    /// Time step in minutes, a divisor of 60
-    #[arg(long, default_value_t = 60)]
-    pub step: u32,
+    #[command(flatten)]
+    pub period: super::period::PeriodArgs,
     /// Output folder (created if missing)
     #[arg(long)]
     pub out: PathBuf,
@@ -176,11 +165,11 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
             )));
         }
     }
-    let weather = load_weather(&args.weather)?;
+    let weather = load_weather(&args.period.weather)?;
     let opts = SimOptions {
-        step_s: args.step as f64 * 60.0,
-        from: args.from,
-        to: args.to,
+        step_s: args.period.step as f64 * 60.0,
+        from: args.period.from,
+        to: args.period.to,
         ..SimOptions::default()
     };
     let bar = crate::progress::bar(variants.len() as u64, "variants", args.quiet);

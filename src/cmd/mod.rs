@@ -10,6 +10,7 @@ pub mod weather;
 pub mod size;
 pub mod setback;
 pub mod outage;
+pub mod period;
 pub mod compare;
 pub mod calibrate;
 pub mod sweep;

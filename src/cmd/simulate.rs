@@ -2,7 +2,6 @@
 
 use std::path::PathBuf;
 
-use chrono::NaiveDate;
 use dwell_studies::{simulate, Control, SimOptions};
 
 use super::model_io;
@@ -44,18 +43,8 @@ pub enum SkyArg {
 pub struct SimulateArgs {
     /// Model file (JSON)
     pub model: PathBuf,
-    /// Weather file; default: the built-in invented climate (see weather-samples/README.md)
-    #[arg(long)]
-    pub weather: Option<PathBuf>,
-    /// First local day, YYYY-MM-DD (default: start of the weather)
-    #[arg(long)]
-    pub from: Option<NaiveDate>,
-    /// Last local day, inclusive, YYYY-MM-DD (default: end of the weather)
-    #[arg(long)]
-    pub to: Option<NaiveDate>,
-    /// Time step in minutes, a divisor of 60 (default 60)
-    #[arg(long, default_value_t = 60)]
-    pub step: u32,
+    #[command(flatten)]
+    pub period: super::period::PeriodArgs,
     /// How the heaters are driven
     #[arg(long, value_enum, default_value = "thermostat")]
     pub control: ControlArg,
@@ -87,9 +76,9 @@ pub fn load_weather(path: &Option<PathBuf>) -> anyhow::Result<dwell_weather::Wea
 /// Runs the command.
 pub fn run(args: SimulateArgs) -> anyhow::Result<()> {
     let (model, house) = model_io::load_house(&args.model)?;
-    let weather = load_weather(&args.weather)?;
+    let weather = load_weather(&args.period.weather)?;
     let opts = SimOptions {
-        step_s: args.step as f64 * 60.0,
+        step_s: args.period.step as f64 * 60.0,
         control: match args.control {
             ControlArg::Free => Control::Free,
             ControlArg::Thermostat => Control::Thermostat,
@@ -97,8 +86,8 @@ pub fn run(args: SimulateArgs) -> anyhow::Result<()> {
             ControlArg::Schedule => Control::Schedule,
         },
         initial_c: args.initial,
-        from: args.from,
-        to: args.to,
+        from: args.period.from,
+        to: args.period.to,
         route: match args.route {
             RouteArg::Modal => dwell_solver::Route::Modal,
             RouteArg::Block => dwell_solver::Route::Block,

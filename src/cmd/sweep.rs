@@ -4,7 +4,6 @@
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use chrono::NaiveDate;
 use dwell_studies::sweep::{fnv1a, merge, parse_rows, run_sweep, shard, Manifest, RESULT_HEADER};
 use dwell_studies::SimOptions;
 
@@ -23,18 +22,8 @@ pub struct SweepArgs {
     /// Base model file (JSON)
     #[arg(long)]
     pub model: Option<PathBuf>,
-    /// Weather file; default the built-in invented climate
-    #[arg(long)]
-    pub weather: Option<PathBuf>,
-    /// First local day, YYYY-MM-DD
-    #[arg(long)]
-    pub from: Option<NaiveDate>,
-    /// Last local day, inclusive, YYYY-MM-DD
-    #[arg(long)]
-    pub to: Option<NaiveDate>,
-    /// Time step in minutes, a divisor of 60
-    #[arg(long, default_value_t = 60)]
-    pub step: u32,
+    #[command(flatten)]
+    pub period: super::period::PeriodArgs,
     /// Run only shard i of N (1-based): rows i, i+N, i+2N, …
     #[arg(long, value_name = "i/N")]
     pub shard: Option<String>,
@@ -118,19 +107,19 @@ pub fn run(args: SweepArgs) -> anyhow::Result<()> {
     let dir = rows_path.parent().unwrap_or(Path::new("."));
     let rows = parse_rows(&rows_text, &rows_path.display().to_string(), dir).map_err(bad_input)?;
     let mine = shard(&rows, si, sn);
-    let weather = load_weather(&args.weather)?;
+    let weather = load_weather(&args.period.weather)?;
     let opts = SimOptions {
-        step_s: args.step as f64 * 60.0,
-        from: args.from,
-        to: args.to,
+        step_s: args.period.step as f64 * 60.0,
+        from: args.period.from,
+        to: args.period.to,
         ..SimOptions::default()
     };
     let options_key = format!(
         "{:?}|{:?}|{:?}|{}|{}",
-        args.weather,
-        args.from,
-        args.to,
-        args.step,
+        args.period.weather,
+        args.period.from,
+        args.period.to,
+        args.period.step,
         weather.times.len()
     );
     let manifest = Manifest {

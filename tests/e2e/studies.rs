@@ -115,7 +115,7 @@ fn bad_inputs_exit_2_and_name_the_place() {
         out.to_str().unwrap(),
     ]);
     assert_eq!(o.status.code(), Some(2));
-    assert!(stderr(&o).contains("cannot read variant file no/such.json"), "{}", stderr(&o));
+    assert!(stderr(&o).contains("variant a: cannot read no/such.json"), "{}", stderr(&o));
     let bad = d.path().join("bad.json");
     std::fs::write(&bad, r#"{"zones": [{"id": "downstairs", "floor_area_m2": -5, "volume_m3": 10}]}"#).unwrap();
     let o = dwell(&[

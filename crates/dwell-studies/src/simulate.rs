@@ -247,6 +247,42 @@ fn period(f: &Forcing, opts: &SimOptions) -> Result<(usize, usize), StudyError> 
     Ok((start, end))
 }
 
+/// The capacity-limited thermostat's channels of a house: one per zone whose heaters have a
+/// setpoint, driving those heaters together at the same fraction of their capacities.
+pub struct ThermostatChannels {
+    /// Channels for [`Stepper::with_control`]; `output` is the zone index.
+    pub channels: Vec<ControlChannel>,
+    /// Heater indices (model order) of each channel.
+    pub heaters: Vec<Vec<usize>>,
+    /// Zone index of each channel.
+    pub zones: Vec<usize>,
+}
+
+/// Builds the thermostat channels of `house`; `controlled(heater index)` says whether a heater
+/// follows a setpoint. Heaters with no capacity are left out.
+pub fn thermostat_channels(model: &ModelFile, house: &House, controlled: &dyn Fn(usize) -> bool) -> ThermostatChannels {
+    let mut out = ThermostatChannels { channels: Vec::new(), heaters: Vec::new(), zones: Vec::new() };
+    for (zi, z) in house.zones.iter().enumerate() {
+        let hs: Vec<usize> = model
+            .heaters
+            .iter()
+            .enumerate()
+            .filter(|(hi, h)| h.zone == z.id && h.capacity_w > 0.0 && controlled(*hi))
+            .map(|(hi, _)| hi)
+            .collect();
+        if hs.is_empty() {
+            continue;
+        }
+        out.channels.push(ControlChannel {
+            weights: hs.iter().map(|&hi| (house.heater_inputs[hi], model.heaters[hi].capacity_w)).collect(),
+            output: zi,
+        });
+        out.heaters.push(hs);
+        out.zones.push(zi);
+    }
+    out
+}
+
 /// Warnings when the weather was made for another place or time zone than the model's site.
 pub fn site_warnings(model: &ModelFile, weather: &WeatherSeries) -> Vec<String> {
     let mut out = Vec::new();
@@ -299,27 +335,8 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
     let mut stepper = Stepper::new(&disc, &zone_rows, &flows)?;
 
     // Thermostat channels: one per zone with setpoint heaters.
-    let mut channels = Vec::new();
-    let mut channel_heaters: Vec<Vec<usize>> = Vec::new();
-    let mut channel_zone = Vec::new();
-    for (zi, z) in house.zones.iter().enumerate() {
-        let hs: Vec<usize> = model
-            .heaters
-            .iter()
-            .enumerate()
-            .filter(|(hi, h)| h.zone == z.id && forcing.setpoints[*hi].is_some())
-            .map(|(hi, _)| hi)
-            .collect();
-        if hs.is_empty() {
-            continue;
-        }
-        channels.push(ControlChannel {
-            weights: hs.iter().map(|&hi| (house.heater_inputs[hi], model.heaters[hi].capacity_w)).collect(),
-            output: zi,
-        });
-        channel_heaters.push(hs);
-        channel_zone.push(zi);
-    }
+    let ThermostatChannels { channels, heaters: channel_heaters, .. } =
+        thermostat_channels(model, house, &|hi| forcing.setpoints[hi].is_some());
     let q = channels.len();
     let use_channels = matches!(opts.control, Control::Thermostat | Control::OnOff) && q > 0;
     if use_channels {
@@ -583,7 +600,6 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
             }
         }
     }
-    let _ = channel_zone;
     let summary = Summary {
         model: house.name.clone(),
         weather: weather.source.clone(),

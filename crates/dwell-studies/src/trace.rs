@@ -9,7 +9,7 @@
 
 use chrono::{DateTime, FixedOffset, NaiveDateTime};
 use dwell_model::{House, ModelFile};
-use dwell_solver::{ControlChannel, Discretization, Readout, Route, Stepper};
+use dwell_solver::{Discretization, Readout, Route, Stepper};
 use dwell_weather::{SkyModel, WeatherSeries};
 
 use crate::forcing::Forcing;
@@ -80,27 +80,8 @@ impl<'a> Runner<'a> {
         let disc = Discretization::new(&net.system, step_s, Route::Modal)?;
         let rows = Readout::nodes(&house.zones.iter().map(|z| z.air_state).collect::<Vec<_>>(), n, m);
         let mut stepper = Stepper::new(&disc, &rows, &Readout::empty(n, m))?;
-        let mut channels = Vec::new();
-        let mut channel_zone = Vec::new();
-        let mut channel_heaters = Vec::new();
-        for (zi, z) in house.zones.iter().enumerate() {
-            let hs: Vec<usize> = model
-                .heaters
-                .iter()
-                .enumerate()
-                .filter(|(_, h)| h.zone == z.id && heater_setpoint(model, h).is_some() && h.capacity_w > 0.0)
-                .map(|(i, _)| i)
-                .collect();
-            if hs.is_empty() {
-                continue;
-            }
-            channels.push(ControlChannel {
-                weights: hs.iter().map(|&i| (house.heater_inputs[i], model.heaters[i].capacity_w)).collect(),
-                output: zi,
-            });
-            channel_zone.push(zi);
-            channel_heaters.push(hs);
-        }
+        let crate::simulate::ThermostatChannels { channels, heaters: channel_heaters, zones: channel_zone } =
+            crate::simulate::thermostat_channels(model, house, &|hi| heater_setpoint(model, &model.heaters[hi]).is_some());
         let q = channels.len();
         if q > 0 {
             stepper = stepper.with_control(&channels)?;
