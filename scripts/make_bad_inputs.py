@@ -98,6 +98,8 @@ wc = {
  "unknown-column": ("time,air_c,humidity\n2025-01-01T00:00+00:00,1,80\n2025-01-01T01:00+00:00,1,80\n", ["humidity"]),
  "no-air-column": ("time,ghi_w_m2\n2025-01-01T00:00+00:00,0\n2025-01-01T01:00+00:00,0\n", ["air_c"]),
  "bad-number": (head + rows([(0,"1,0,0"),(1,"warm,0,0")]), [".csv:3:"]),
+ # found by fuzzing (docs/fuzzing.md): a mistyped year must not make the reader fill 35 million hours
+ "mistyped-year": (head + "2025-03-30T00:00+01:00,1,0,0\n6025-03-30T01:00+01:00,1,0,0\n2025-03-30T03:00+02:00,1,0,0\n", [".csv:3:", "is the date on this line mistyped?"]),
 }
 for n, (text, exp) in wc.items():
     (W / f"{n}.csv").write_text(text)

@@ -167,6 +167,9 @@ pub(crate) fn build_series(
         if missing > 0 {
             if missing > max_fill {
                 let hint = match opts.fill_gaps_max_h {
+                    _ if missing > 24 * 366 => {
+                        "; the gap is longer than a year: is the date on this line mistyped?".to_string()
+                    }
                     None => {
                         format!("; add the rows, or fill gaps linearly with --fill-gaps {missing}")
                     }
@@ -182,6 +185,10 @@ pub(crate) fn build_series(
                     stamp: format_stamp(&row.time),
                     hint,
                 });
+                // No placeholder rows for a gap that is an error anyway: a mistyped year
+                // (2025 → 6025) would otherwise ask for 35 million of them (found by fuzzing).
+                grid.push(row);
+                continue;
             }
             let start = prev.time;
             for h in 1..=missing {
