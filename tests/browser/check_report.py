@@ -12,7 +12,9 @@ so any attempt to fetch something would fail loudly; the script then requires
 * no console error or failed load in Chromium's log (the embedded font must decode too),
 * a screenshot (PNG, 1200 px wide, non-trivial size) and
 * a PDF print with at least one page per report section (the print stylesheet breaks pages
-  between sections), starting with `%PDF-`.
+  between sections), starting with `%PDF-`;
+* the same printed on A4 and on US Letter (the paper a print dialog would choose, set by an
+  @page rule in a copy): the right page size and a page or more per section.
 
 Exit status 0 when every check passes, 1 otherwise; outputs stay in DIR for a look.
 """
@@ -72,6 +74,45 @@ def pdf_pages(path):
     return data[:5] == b"%PDF-", len(re.findall(rb"/Type\s*/Page(?!s)", data))
 
 
+# Paper sizes a client prints on (points, 1/72 inch): ISO 216 A4 and US Letter.
+PAPERS = {"A4": (595.28, 841.89), "letter": (612.0, 792.0)}
+
+
+def pdf_media_box(path):
+    m = re.search(rb"/MediaBox\s*\[\s*([-\d.]+)\s+([-\d.]+)\s+([-\d.]+)\s+([-\d.]+)\s*\]", open(path, "rb").read())
+    return None if m is None else (float(m.group(3)) - float(m.group(1)), float(m.group(4)) - float(m.group(2)))
+
+
+def check_paper(browser, report, outdir, name):
+    """Prints the report on A4 and on Letter (the page size a print dialog would set, injected
+    as an @page rule into a copy) and checks the paper size and one page or more per section."""
+    failures = []
+    html = open(report, encoding="utf-8").read()
+    for paper, (w, h) in PAPERS.items():
+        copy = os.path.join(os.path.dirname(report), "report-%s.html" % paper)
+        with open(copy, "w", encoding="utf-8") as f:
+            f.write(html.replace("</head>", "<style>@page { size: %s; }</style></head>" % paper, 1))
+        pdf = os.path.join(outdir, "%s-%s.pdf" % (name, paper))
+        profile = tempfile.mkdtemp(prefix="dwell-chromium-")
+        try:
+            r = chromium(browser, ["--no-pdf-header-footer", "--print-to-pdf=" + pdf, "file://" + os.path.abspath(copy)], profile)
+        finally:
+            shutil.rmtree(profile, ignore_errors=True)
+            os.remove(copy)
+        if r.returncode != 0 or not os.path.exists(pdf):
+            failures.append("%s %s: no PDF (chromium exited %d)" % (name, paper, r.returncode))
+            continue
+        box = pdf_media_box(pdf)
+        ok, pages = pdf_pages(pdf)
+        if box is None or abs(box[0] - w) > 2 or abs(box[1] - h) > 2:
+            failures.append("%s %s: page is %s pt, expected %.0f × %.0f" % (name, paper, box, w, h))
+        elif not ok or pages < SECTIONS:
+            failures.append("%s %s: %d pages, expected at least %d (a page per section)" % (name, paper, pages, SECTIONS))
+        else:
+            print("%s on %s: %d pages of %.0f × %.0f pt" % (name, paper, pages, box[0], box[1]))
+    return failures
+
+
 def check_report(browser, report, outdir, name):
     failures = []
     url = "file://" + os.path.abspath(report)
@@ -126,6 +167,7 @@ def main():
             failures.append("%s: dwell exited %d: %s" % (name, r.returncode, r.stderr))
             continue
         failures += check_report(a.chromium, os.path.join(out, name, "report.html"), out, name)
+        failures += check_paper(a.chromium, os.path.join(out, name, "report.html"), out, name)
     if failures:
         print("FAILED:\n" + "\n".join(failures), file=sys.stderr)
         return 1
