@@ -220,32 +220,6 @@ fn cop_at(h: &dwell_model::file::Heater, t: f64) -> f64 {
     c[c.len() - 1].cop
 }
 
-/// The stamps `[start, end]` selected by `from`/`to` (local days).
-fn period(f: &Forcing, opts: &SimOptions) -> Result<(usize, usize), StudyError> {
-    let n = f.hours();
-    let mut start = 0;
-    let mut end = n - 1;
-    if let Some(d) = opts.from {
-        let t0 = d.and_hms_opt(0, 0, 0).expect("midnight");
-        start = (0..n)
-            .find(|&i| f.local(f.times[i]) >= t0)
-            .ok_or_else(|| StudyError::Option(format!("--from {d} is after the end of the weather ({})", f.times[n - 1])))?;
-    }
-    if let Some(d) = opts.to {
-        let t1 = d.succ_opt().unwrap_or(d).and_hms_opt(0, 0, 0).expect("midnight");
-        end = (0..n)
-            .rev()
-            .find(|&i| f.local(f.times[i]) <= t1)
-            .ok_or_else(|| StudyError::Option(format!("--to {d} is before the start of the weather ({})", f.times[0])))?;
-    }
-    if end <= start {
-        return Err(StudyError::Option(format!(
-            "the period from {} to {} holds no whole hour of weather; widen --from/--to",
-            f.times[start], f.times[end]
-        )));
-    }
-    Ok((start, end))
-}
 
 /// The capacity-limited thermostat's channels of a house: one per zone whose heaters have a
 /// setpoint, driving those heaters together at the same fraction of their capacities.
@@ -319,7 +293,7 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
         return Err(StudyError::Option("the weather has fewer than two hours".into()));
     }
     let forcing = Forcing::new(model, house, weather, opts.step_s, opts.sky);
-    let (start, end) = period(&forcing, opts)?;
+    let (start, end) = crate::trace::period_stamps(&forcing, opts.from, opts.to)?;
     let net = &house.network;
     let n = net.states.len();
     let m = net.inputs.len();

@@ -252,9 +252,10 @@ pub fn period_stamps(f: &Forcing, from: Option<chrono::NaiveDate>, to: Option<ch
             .ok_or_else(|| StudyError::Option(format!("--to {d} is before the start of the weather ({})", f.times[0])))?;
     }
     if end <= start {
-        return Err(StudyError::Option(
-            "the period holds no whole hour of weather; widen --from/--to".into(),
-        ));
+        return Err(StudyError::Option(format!(
+            "the period from {} to {} holds no whole hour of weather; widen --from/--to",
+            f.times[start], f.times[end]
+        )));
     }
     Ok((start, end))
 }
