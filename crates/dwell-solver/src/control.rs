@@ -58,11 +58,11 @@ impl Stepper {
         let q = channels.len();
         let mut problems = Vec::new();
         for (c, ch) in channels.iter().enumerate() {
-            if ch.output >= self.inst_packed.rows() {
+            if ch.output >= self.inst_end.rows() {
                 problems.push(format!(
                     "channel {c}: output {} is not an instant readout row (0..{})",
                     ch.output,
-                    self.inst_packed.rows()
+                    self.inst_end.rows()
                 ));
             }
             if channels[..c].iter().any(|o| o.output == ch.output) {
@@ -88,7 +88,7 @@ impl Stepper {
         let mut gains = DMatrix::zeros(q, self.n);
         let mut influence = vec![0.0; q * q];
         for (c, ch) in channels.iter().enumerate() {
-            let mut e = vec![0.0; self.packed_inputs()];
+            let mut e = vec![0.0; self.m];
             for &(j, p) in &ch.weights {
                 e[j] += p;
             }
@@ -200,6 +200,7 @@ impl Stepper {
         let q = ctl.channels.len();
         assert!(fraction_out.len() == q, "channel slice lengths");
         assert_eq!(u_k.len(), self.m, "u_k length");
+        self.align(u_k);
         for c in 0..q {
             ctl.now[c] = self.instant_row_now(ctl.channels[c].output, u_k);
         }

@@ -3,30 +3,35 @@
 //! Two layouts:
 //!
 //! - [`Packed`]: row by row, for single rows (`dot`) used by the thermostats;
-//! - [`Panels`]: the matrix cut into panels of 4 or 8 rows, each panel stored column by
-//!   column (4 or 8 values per column, zero-padded). `y = A x` then runs as, per panel,
-//!   `acc += x_j · A[panel, j]` over the columns `j`: the accumulators stay in vector
-//!   registers, every matrix entry is loaded once, contiguously, and there is no horizontal
-//!   sum. This is the layout of the "N" kernel of a BLAS `gemv`; written as plain loops over
-//!   fixed-size arrays, the compiler vectorises it.
+//! - [`Panels`]: column-major with the leading dimension rounded up to a multiple of 8 rows
+//!   (zero-padded), read as panels of 8 rows. `y = A x` runs as `acc += x_j · A[rows, j]`
+//!   over the columns `j`, with the accumulators of a group of panels held in vector
+//!   registers: every matrix entry is loaded once, contiguously, each broadcast `x_j` serves
+//!   the whole group, and no horizontal sums are needed. This is the layout of the "N"
+//!   kernel of a BLAS `gemv`, written as plain loops over fixed-size arrays that the compiler
+//!   vectorises.
 //!
-//! The kernel is compiled twice: for the x86-64 baseline (SSE2, which every x86-64 has) and,
-//! where the processor reports AVX2 and FMA at run time (`is_x86_feature_detected!`), with
-//! 256-bit registers and fused multiply-adds. The choice is made once, in
-//! [`Kernel::detect`]; a shipped binary therefore runs on any x86-64 and still uses the wider
-//! units where they exist. The fused kernel rounds once per multiply-add instead of twice;
-//! the results differ from the baseline's by rounding only (about `1e-16` relative per term).
+//! **Grouping.** A multiply-add has a latency of about 4 cycles and two issue each cycle, so
+//! about 8 independent accumulator chains keep the units busy. A tall matrix (state update,
+//! `n × m`) gets its chains from several panels side by side (`G` panels); a short, wide one
+//! (a few readout rows over `n + m` columns) gets them from `S` sets of columns summed at the
+//! end. The pair `(G, S)` is picked from the number of panels and the register budget of the
+//! kernel form (8 accumulators of 8 lanes for AVX-512's 32 registers, 4 for AVX2's 16,
+//! 2 for SSE2's 16 two-lane registers).
 //!
-//! On the development machine a hand-written loop over a packed matrix beat nalgebra's
-//! `gemv` by 1.3–2.5× in a prototype (DESIGN.md); the panel kernel is another 3–10× faster
-//! than the row-wise dot products this module used before (docs/performance.md).
+//! **Forms.** The loops are compiled three times: for the x86-64 baseline (SSE2, which every
+//! x86-64 has), with AVX2 + FMA, and with AVX-512F (which implies both). The form is chosen
+//! once, in [`Kernel::detect`], by `is_x86_feature_detected!`; a shipped binary runs on any
+//! x86-64 and still uses the widest units present. The fused forms round once per
+//! multiply-add instead of twice; results differ from the baseline's by rounding only (about
+//! `1e-16` relative per term). A whole step is one call into the chosen form
+//! (`stepper.rs`), so the kernels inline into one another and the per-step overhead is a
+//! single indirect branch.
 
 use nalgebra::DMatrix;
 
-/// Rows per panel, tall: two 256-bit registers (or four 128-bit ones) of `f64`.
-const TALL: usize = 8;
-/// Rows per panel, short (for few rows, such as readouts): one 256-bit register.
-const SHORT: usize = 4;
+/// Rows per panel: one AVX-512 register, two AVX2 registers or four SSE2 registers of `f64`.
+pub(crate) const PANEL: usize = 8;
 
 /// A dense matrix stored row by row.
 #[derive(Clone, Debug)]
@@ -87,7 +92,7 @@ pub(crate) fn dot(a: &[f64], b: &[f64]) -> f64 {
     (acc[0] + acc[1]) + (acc[2] + acc[3]) + tail
 }
 
-/// Which compiled form of the panel kernel runs.
+/// Which compiled form of the kernels runs.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(crate) enum Kernel {
     /// Baseline x86-64 (SSE2) or any other architecture: separate multiply and add.
@@ -95,30 +100,73 @@ pub(crate) enum Kernel {
     /// x86-64 with AVX2 and FMA, detected at run time.
     #[cfg(target_arch = "x86_64")]
     Avx2Fma,
+    /// x86-64 with AVX-512F (and AVX2, FMA), detected at run time.
+    #[cfg(target_arch = "x86_64")]
+    Avx512,
 }
 
 impl Kernel {
-    /// The fastest form this processor supports.
+    /// The fastest form this processor supports, or a narrower one named by the environment
+    /// variable `DWELL_KERNEL` (`portable`, `avx2`; for benchmarks).
     pub(crate) fn detect() -> Self {
+        let cap = std::env::var("DWELL_KERNEL").unwrap_or_default();
+        if cap == "portable" {
+            return Kernel::Portable;
+        }
         #[cfg(target_arch = "x86_64")]
         {
-            if std::is_x86_feature_detected!("avx2") && std::is_x86_feature_detected!("fma") {
+            let avx2 =
+                std::is_x86_feature_detected!("avx2") && std::is_x86_feature_detected!("fma");
+            if avx2 && cap != "avx2" && std::is_x86_feature_detected!("avx512f") {
+                return Kernel::Avx512;
+            }
+            if avx2 {
                 return Kernel::Avx2Fma;
             }
         }
         Kernel::Portable
     }
+
+    /// Every form this processor can run (for tests).
+    #[cfg(test)]
+    pub(crate) fn available() -> Vec<Self> {
+        let mut out = vec![Kernel::Portable];
+        #[cfg(target_arch = "x86_64")]
+        {
+            if std::is_x86_feature_detected!("avx2") && std::is_x86_feature_detected!("fma") {
+                out.push(Kernel::Avx2Fma);
+                if std::is_x86_feature_detected!("avx512f") {
+                    out.push(Kernel::Avx512);
+                }
+            }
+        }
+        out
+    }
 }
 
-/// A dense `rows × cols` matrix in panels of `height` rows (4 or 8, whichever pads less;
-/// 8 on a tie), each panel column-major.
+/// A dense `rows × cols` matrix, column-major with leading dimension `ld = ⌈rows/8⌉·8`,
+/// zero-padded.
 #[derive(Clone, Debug)]
 pub(crate) struct Panels {
     rows: usize,
     cols: usize,
-    height: usize,
-    /// `ceil(rows / height)` panels of `cols · height` values.
-    data: Vec<f64>,
+    ld: usize,
+    /// Panel `p` of column `j` at `data[j · ld/8 + p]`, each on its own cache line.
+    data: Vec<Line>,
+}
+
+/// Eight `f64` on one 64-byte cache line.
+#[derive(Clone, Copy, Debug)]
+#[repr(C, align(64))]
+pub(crate) struct Line(pub(crate) [f64; PANEL]);
+
+/// How `y = A x` starts.
+#[derive(Clone, Copy)]
+pub(crate) enum Init<'a> {
+    /// `y = A x`.
+    Set,
+    /// `y = d ∘ s + A x` (elementwise product; `d` and `s` at least `rows` long).
+    Scaled(&'a [f64], &'a [f64]),
 }
 
 impl Panels {
@@ -127,31 +175,22 @@ impl Panels {
         debug_assert_eq!(a.nrows(), b.nrows());
         let rows = a.nrows();
         let cols = a.ncols() + b.ncols();
-        let height = if rows.div_ceil(SHORT) * SHORT < rows.div_ceil(TALL) * TALL {
-            SHORT
-        } else {
-            TALL
-        };
-        let np = rows.div_ceil(height);
-        let mut data = vec![0.0; np * cols * height];
-        for p in 0..np {
-            let panel = &mut data[p * cols * height..(p + 1) * cols * height];
-            for r in 0..height.min(rows - p * height) {
-                let i = p * height + r;
-                for j in 0..cols {
-                    let v = if j < a.ncols() {
-                        a[(i, j)]
-                    } else {
-                        b[(i, j - a.ncols())]
-                    };
-                    panel[j * height + r] = v;
-                }
+        let ld = rows.div_ceil(PANEL) * PANEL;
+        let np = ld / PANEL;
+        let mut data = vec![Line([0.0; PANEL]); np * cols];
+        for j in 0..cols {
+            for i in 0..rows {
+                data[j * np + i / PANEL].0[i % PANEL] = if j < a.ncols() {
+                    a[(i, j)]
+                } else {
+                    b[(i, j - a.ncols())]
+                };
             }
         }
         Panels {
             rows,
             cols,
-            height,
+            ld,
             data,
         }
     }
@@ -166,95 +205,324 @@ impl Panels {
         self.cols
     }
 
-    /// `y = self · x` (`add = false`) or `y += self · x` (`add = true`).
+    /// `y = self · x` (or as `init` says), in the form `kernel` (one call, for setup and
+    /// tests; the stepper calls [`Panels::gemv_in`] from inside its own per-form function).
     ///
     /// # Panics
-    /// If `x.len() != cols` or `y.len() != rows`.
-    #[inline]
-    pub(crate) fn gemv(&self, kernel: Kernel, x: &[f64], y: &mut [f64], add: bool) {
-        assert!(x.len() == self.cols && y.len() == self.rows, "gemv shapes");
-        let (d, c) = (&self.data, self.cols);
-        match (kernel, self.height) {
-            (Kernel::Portable, TALL) => gemv_body::<false, TALL, 2>(d, c, x, y, add),
-            (Kernel::Portable, _) => gemv_body::<false, SHORT, 4>(d, c, x, y, add),
-            // SAFETY (both arms): `Kernel::Avx2Fma` is only constructed after
-            // `is_x86_feature_detected!` reported AVX2 and FMA.
+    /// If `x.len() < cols` or `y.len() < rows`.
+    pub(crate) fn gemv(&self, kernel: Kernel, x: &[f64], y: &mut [f64], init: Init) {
+        match kernel {
+            // SAFETY: `Plain` is baseline code.
+            Kernel::Portable => unsafe { self.gemv_in::<Plain, 2>(x, y, init) },
+            // SAFETY (both arms): the fused forms are only constructed after
+            // `is_x86_feature_detected!` reported their features.
             #[cfg(target_arch = "x86_64")]
-            (Kernel::Avx2Fma, TALL) => unsafe { gemv_avx2_fma_tall(d, c, x, y, add) },
+            Kernel::Avx2Fma => unsafe { gemv_avx2(self, x, y, init) },
             #[cfg(target_arch = "x86_64")]
-            (Kernel::Avx2Fma, _) => unsafe { gemv_avx2_fma_short(d, c, x, y, add) },
+            Kernel::Avx512 => unsafe { gemv_avx512(self, x, y, init) },
         }
     }
-}
 
-// Accumulators: the portable (SSE2) forms hold 8 of the 16 128-bit registers, the AVX2 forms
-// 8 of the 16 256-bit registers, leaving room for loads; that is 4–8 independent chains of
-// vector multiply-adds in flight.
-
-#[cfg(target_arch = "x86_64")]
-#[target_feature(enable = "avx2,fma")]
-unsafe fn gemv_avx2_fma_tall(data: &[f64], cols: usize, x: &[f64], y: &mut [f64], add: bool) {
-    gemv_body::<true, TALL, 4>(data, cols, x, y, add)
-}
-
-#[cfg(target_arch = "x86_64")]
-#[target_feature(enable = "avx2,fma")]
-unsafe fn gemv_avx2_fma_short(data: &[f64], cols: usize, x: &[f64], y: &mut [f64], add: bool) {
-    gemv_body::<true, SHORT, 8>(data, cols, x, y, add)
-}
-
-/// `acc + a·b`, fused when `FUSED` (then only called where FMA is enabled).
-#[inline(always)]
-fn madd<const FUSED: bool>(a: f64, b: f64, acc: f64) -> f64 {
-    if FUSED {
-        a.mul_add(b, acc)
-    } else {
-        acc + a * b
-    }
-}
-
-/// The panel kernel. `SETS` sets of accumulators (columns `j mod SETS`) keep independent
-/// dependency chains of vector multiply-adds in flight.
-#[inline(always)]
-fn gemv_body<const FUSED: bool, const P: usize, const SETS: usize>(
-    data: &[f64],
-    cols: usize,
-    x: &[f64],
-    y: &mut [f64],
-    add: bool,
-) {
-    if cols == 0 {
-        if !add {
-            y.iter_mut().for_each(|v| *v = 0.0);
+    /// The kernel body, to be inlined into a function compiled for the form: `V` is the
+    /// form's 8-lane vector, `B` its accumulator budget (in 8-lane vectors).
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions.
+    #[inline(always)]
+    pub(crate) unsafe fn gemv_in<V: Lane8, const B: usize>(
+        &self,
+        x: &[f64],
+        y: &mut [f64],
+        init: Init,
+    ) {
+        assert!(x.len() >= self.cols && y.len() >= self.rows, "gemv shapes");
+        let x = &x[..self.cols];
+        let y = &mut y[..self.rows];
+        if let Init::Scaled(d, s) = init {
+            assert!(d.len() >= self.rows && s.len() >= self.rows, "gemv shapes");
         }
-        return;
+        let np = self.ld / PANEL;
+        // (G, S): G panels side by side, S column sets; G·S ≤ B accumulators.
+        // SAFETY (all calls): forwarded from this function's contract.
+        let done = unsafe {
+            match (B, np) {
+                (_, 0) => 0,
+                (8, 1) => self.group::<V, 1, 8>(0, x, y, init),
+                (8, 2) => self.group::<V, 2, 4>(0, x, y, init),
+                (8, 3) => self.group::<V, 3, 2>(0, x, y, init),
+                (8, _) => self.group::<V, 4, 2>(0, x, y, init),
+                (4, 1) => self.group::<V, 1, 4>(0, x, y, init),
+                (4, 2) => self.group::<V, 2, 2>(0, x, y, init),
+                (4, _) => self.group::<V, 4, 1>(0, x, y, init),
+                (_, 1) => self.group::<V, 1, 2>(0, x, y, init),
+                _ => self.group::<V, 2, 1>(0, x, y, init),
+            }
+        };
+        // Panels left over from the last full group, one at a time.
+        let mut p0 = done;
+        while p0 < np {
+            p0 = unsafe { self.group::<V, 1, 2>(p0, x, y, init) };
+        }
     }
-    let x = &x[..cols];
-    for (panel, yp) in data.chunks_exact(cols * P).zip(y.chunks_mut(P)) {
-        let mut acc = [[0.0_f64; P]; SETS];
-        let groups = panel.chunks_exact(SETS * P);
-        let rest = groups.remainder();
-        for (g, xg) in groups.zip(x.chunks_exact(SETS)) {
-            for (a, (col, &xj)) in acc.iter_mut().zip(g.chunks_exact(P).zip(xg)) {
-                for r in 0..P {
-                    a[r] = madd::<FUSED>(xj, col[r], a[r]);
+
+    /// Runs full groups of `G` panels from panel `p0` on; returns the first panel not done.
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions.
+    #[inline(always)]
+    unsafe fn group<V: Lane8, const G: usize, const S: usize>(
+        &self,
+        mut p0: usize,
+        x: &[f64],
+        y: &mut [f64],
+        init: Init,
+    ) -> usize {
+        let (np, rows) = (self.ld / PANEL, self.rows);
+        let main = x.len() / S * S;
+        let (blocks, _) = x[..main].as_chunks::<S>();
+        while p0 + G <= np {
+            // SAFETY: `V`'s instructions are supported (this function's contract); every
+            // pointer comes from a reference.
+            unsafe {
+                let mut acc = [[V::zero(); G]; S];
+                for (b, xb) in blocks.iter().enumerate() {
+                    for s in 0..S {
+                        let xj = V::splat(xb[s]);
+                        let base = (b * S + s) * np + p0;
+                        let col = &self.data[base..base + G];
+                        for g in 0..G {
+                            acc[s][g] = V::fmadd(xj, V::load(&col[g].0), acc[s][g]);
+                        }
+                    }
+                }
+                for (j, &xv) in x.iter().enumerate().skip(main) {
+                    let xj = V::splat(xv);
+                    let base = j * np + p0;
+                    let col = &self.data[base..base + G];
+                    for g in 0..G {
+                        acc[0][g] = V::fmadd(xj, V::load(&col[g].0), acc[0][g]);
+                    }
+                }
+                for s in 1..S {
+                    for g in 0..G {
+                        acc[0][g] = V::add(acc[0][g], acc[s][g]);
+                    }
+                }
+                let mut sum = acc[0];
+                let r0 = p0 * PANEL;
+                if let Init::Scaled(d, s) = init {
+                    if r0 + G * PANEL <= rows {
+                        let (dg, _) = d[r0..r0 + G * PANEL].as_chunks::<PANEL>();
+                        let (sg, _) = s[r0..r0 + G * PANEL].as_chunks::<PANEL>();
+                        for g in 0..G {
+                            sum[g] = V::fmadd(V::load(&dg[g]), V::load(&sg[g]), sum[g]);
+                        }
+                    } else {
+                        let mut lanes = [0.0; PANEL];
+                        for g in 0..G {
+                            V::store(sum[g], &mut lanes);
+                            for (l, v) in lanes.iter_mut().enumerate() {
+                                let i = r0 + g * PANEL + l;
+                                if i < rows {
+                                    *v += d[i] * s[i];
+                                }
+                            }
+                            sum[g] = V::load(&lanes);
+                        }
+                    }
+                }
+                if r0 + G * PANEL <= rows {
+                    let (yg, _) = y[r0..r0 + G * PANEL].as_chunks_mut::<PANEL>();
+                    for g in 0..G {
+                        V::store(sum[g], &mut yg[g]);
+                    }
+                } else {
+                    let mut lanes = [0.0; PANEL];
+                    for g in 0..G {
+                        V::store(sum[g], &mut lanes);
+                        for (l, &v) in lanes.iter().enumerate() {
+                            if let Some(t) = y.get_mut(r0 + g * PANEL + l) {
+                                *t = v;
+                            }
+                        }
+                    }
                 }
             }
+            p0 += G;
         }
-        let x_rest = &x[cols - rest.len() / P..];
-        for (a, (col, &xj)) in acc.iter_mut().zip(rest.chunks_exact(P).zip(x_rest)) {
-            for r in 0..P {
-                a[r] = madd::<FUSED>(xj, col[r], a[r]);
+        p0
+    }
+}
+
+/// Eight `f64` lanes (one panel column) in the registers of one kernel form.
+///
+/// # Safety
+/// Every method may use instructions of its form; call them only where the processor
+/// supports them (inside the form's `#[target_feature]` functions, where they inline).
+pub(crate) trait Lane8: Copy {
+    /// All lanes 0.
+    unsafe fn zero() -> Self;
+    /// All lanes `x`.
+    unsafe fn splat(x: f64) -> Self;
+    /// The eight values at `p`.
+    unsafe fn load(p: &[f64; PANEL]) -> Self;
+    /// `a·b + c` (fused where the form has FMA).
+    unsafe fn fmadd(a: Self, b: Self, c: Self) -> Self;
+    /// `a + b`.
+    unsafe fn add(a: Self, b: Self) -> Self;
+    /// Writes the lanes to `p`.
+    unsafe fn store(self, p: &mut [f64; PANEL]);
+}
+
+/// The baseline form: plain arrays, separate multiply and add (SSE2 on x86-64).
+#[derive(Clone, Copy)]
+pub(crate) struct Plain([f64; PANEL]);
+
+impl Lane8 for Plain {
+    #[inline(always)]
+    unsafe fn zero() -> Self {
+        Plain([0.0; PANEL])
+    }
+    #[inline(always)]
+    unsafe fn splat(x: f64) -> Self {
+        Plain([x; PANEL])
+    }
+    #[inline(always)]
+    unsafe fn load(p: &[f64; PANEL]) -> Self {
+        Plain(*p)
+    }
+    #[inline(always)]
+    unsafe fn fmadd(a: Self, b: Self, c: Self) -> Self {
+        let mut out = c.0;
+        for l in 0..PANEL {
+            out[l] += a.0[l] * b.0[l];
+        }
+        Plain(out)
+    }
+    #[inline(always)]
+    unsafe fn add(a: Self, b: Self) -> Self {
+        let mut out = a.0;
+        for l in 0..PANEL {
+            out[l] += b.0[l];
+        }
+        Plain(out)
+    }
+    #[inline(always)]
+    unsafe fn store(self, p: &mut [f64; PANEL]) {
+        *p = self.0;
+    }
+}
+
+#[cfg(target_arch = "x86_64")]
+mod x86 {
+    use super::{Lane8, PANEL};
+    use std::arch::x86_64::*;
+
+    /// AVX2 + FMA: two 256-bit registers.
+    #[derive(Clone, Copy)]
+    pub(crate) struct Avx2([__m256d; 2]);
+
+    impl Lane8 for Avx2 {
+        #[inline]
+        #[target_feature(enable = "avx2,fma")]
+        unsafe fn zero() -> Self {
+            Avx2([_mm256_setzero_pd(); 2])
+        }
+        #[inline]
+        #[target_feature(enable = "avx2,fma")]
+        unsafe fn splat(x: f64) -> Self {
+            Avx2([_mm256_set1_pd(x); 2])
+        }
+        #[inline]
+        #[target_feature(enable = "avx2,fma")]
+        unsafe fn load(p: &[f64; PANEL]) -> Self {
+            // SAFETY: `p` holds 8 values; unaligned loads.
+            unsafe {
+                Avx2([
+                    _mm256_loadu_pd(p.as_ptr()),
+                    _mm256_loadu_pd(p.as_ptr().add(4)),
+                ])
             }
         }
-        for (r, v) in yp.iter_mut().enumerate() {
-            let mut sum = acc[0][r];
-            for a in &acc[1..] {
-                sum += a[r];
+        #[inline]
+        #[target_feature(enable = "avx2,fma")]
+        unsafe fn fmadd(a: Self, b: Self, c: Self) -> Self {
+            Avx2([
+                _mm256_fmadd_pd(a.0[0], b.0[0], c.0[0]),
+                _mm256_fmadd_pd(a.0[1], b.0[1], c.0[1]),
+            ])
+        }
+        #[inline]
+        #[target_feature(enable = "avx2,fma")]
+        unsafe fn add(a: Self, b: Self) -> Self {
+            Avx2([_mm256_add_pd(a.0[0], b.0[0]), _mm256_add_pd(a.0[1], b.0[1])])
+        }
+        #[inline]
+        #[target_feature(enable = "avx2,fma")]
+        unsafe fn store(self, p: &mut [f64; PANEL]) {
+            // SAFETY: `p` holds 8 values; unaligned stores.
+            unsafe {
+                _mm256_storeu_pd(p.as_mut_ptr(), self.0[0]);
+                _mm256_storeu_pd(p.as_mut_ptr().add(4), self.0[1]);
             }
-            *v = if add { *v + sum } else { sum };
         }
     }
+
+    /// AVX-512F: one 512-bit register.
+    #[derive(Clone, Copy)]
+    pub(crate) struct Avx512(__m512d);
+
+    impl Lane8 for Avx512 {
+        #[inline]
+        #[target_feature(enable = "avx512f")]
+        unsafe fn zero() -> Self {
+            Avx512(_mm512_setzero_pd())
+        }
+        #[inline]
+        #[target_feature(enable = "avx512f")]
+        unsafe fn splat(x: f64) -> Self {
+            Avx512(_mm512_set1_pd(x))
+        }
+        #[inline]
+        #[target_feature(enable = "avx512f")]
+        unsafe fn load(p: &[f64; PANEL]) -> Self {
+            // SAFETY: `p` holds 8 values; unaligned load.
+            unsafe { Avx512(_mm512_loadu_pd(p.as_ptr())) }
+        }
+        #[inline]
+        #[target_feature(enable = "avx512f")]
+        unsafe fn fmadd(a: Self, b: Self, c: Self) -> Self {
+            Avx512(_mm512_fmadd_pd(a.0, b.0, c.0))
+        }
+        #[inline]
+        #[target_feature(enable = "avx512f")]
+        unsafe fn add(a: Self, b: Self) -> Self {
+            Avx512(_mm512_add_pd(a.0, b.0))
+        }
+        #[inline]
+        #[target_feature(enable = "avx512f")]
+        unsafe fn store(self, p: &mut [f64; PANEL]) {
+            // SAFETY: `p` holds 8 values; unaligned store.
+            unsafe { _mm512_storeu_pd(p.as_mut_ptr(), self.0) }
+        }
+    }
+}
+
+#[cfg(target_arch = "x86_64")]
+pub(crate) use x86::{Avx2, Avx512};
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2,fma")]
+unsafe fn gemv_avx2(a: &Panels, x: &[f64], y: &mut [f64], init: Init) {
+    // SAFETY: this function's features are those of `Avx2`.
+    unsafe { a.gemv_in::<Avx2, 4>(x, y, init) }
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f,avx2,fma")]
+unsafe fn gemv_avx512(a: &Panels, x: &[f64], y: &mut [f64], init: Init) {
+    // SAFETY: this function's features include those of `Avx512`.
+    unsafe { a.gemv_in::<Avx512, 8>(x, y, init) }
 }
 
 #[cfg(test)]
@@ -272,29 +540,31 @@ mod tests {
         assert_eq!(y, want.as_slice());
     }
 
-    /// Every shape around the panel and quad boundaries, both kernels, set and add; the
-    /// entries are small integers so every product and sum is exact in `f64` and the kernels
-    /// must agree with nalgebra's product bit for bit.
+    /// Every shape around the panel and group boundaries (1–6 panels, so every `(G, S)` pair
+    /// and the left-over panels run), every form, set and scaled; the entries are small
+    /// integers so every product and sum is exact in `f64` and the kernels must agree with
+    /// nalgebra's product bit for bit.
     #[test]
     fn panels_match_nalgebra_product_exactly() {
-        let kernels = [Kernel::Portable, Kernel::detect()];
-        for rows in [0, 1, 3, 4, 5, 7, 8, 9, 12, 17] {
-            for (ca, cb) in [(0, 0), (0, 3), (1, 0), (4, 1), (5, 6), (13, 2)] {
+        for rows in [0, 1, 3, 7, 8, 9, 16, 17, 24, 25, 33, 40, 41] {
+            for (ca, cb) in [(0, 0), (0, 3), (1, 0), (4, 1), (5, 6), (13, 2), (40, 12)] {
                 let a = DMatrix::from_fn(rows, ca, |i, j| ((i * 3 + j * 5) % 11) as f64 - 5.0);
                 let b = DMatrix::from_fn(rows, cb, |i, j| ((i * 7 + j * 2) % 13) as f64 - 6.0);
                 let x: Vec<f64> = (0..ca + cb).map(|j| (j % 5) as f64 - 2.0).collect();
+                let d: Vec<f64> = (0..rows).map(|i| (i % 3) as f64 - 1.0).collect();
+                let s: Vec<f64> = (0..rows).map(|i| (i % 4) as f64).collect();
                 let mut full = DMatrix::zeros(rows, ca + cb);
                 full.columns_mut(0, ca).copy_from(&a);
                 full.columns_mut(ca, cb).copy_from(&b);
                 let want = &full * nalgebra::DVector::from_column_slice(&x);
                 let p = Panels::from_blocks(&a, &b);
-                for k in kernels {
+                for k in Kernel::available() {
                     let mut y = vec![3.0; rows];
-                    p.gemv(k, &x, &mut y, false);
+                    p.gemv(k, &x, &mut y, Init::Set);
                     assert_eq!(y, want.as_slice(), "{rows}×({ca}+{cb}) {k:?}");
-                    p.gemv(k, &x, &mut y, true);
-                    let twice: Vec<f64> = want.iter().map(|v| 2.0 * v).collect();
-                    assert_eq!(y, twice, "{rows}×({ca}+{cb}) {k:?} add");
+                    p.gemv(k, &x, &mut y, Init::Scaled(&d, &s));
+                    let scaled: Vec<f64> = (0..rows).map(|i| d[i] * s[i] + want[i]).collect();
+                    assert_eq!(y, scaled, "{rows}×({ca}+{cb}) {k:?} scaled");
                 }
             }
         }

@@ -6,35 +6,47 @@ use nalgebra::DMatrix;
 
 use crate::control::Control;
 use crate::discretization::{ModalBasis, Transition};
-use crate::packed::{dot, Kernel, Packed, Panels};
+use crate::packed::{dot, Init, Kernel, Lane8, Packed, Panels, Plain, PANEL};
+#[cfg(target_arch = "x86_64")]
+use crate::packed::{Avx2, Avx512};
 use crate::{Discretization, InputKind, Readout, SolverError};
 
 /// Steps a discretised system and evaluates readouts, allocation-free after construction.
 ///
 /// The state `s` is held in the discretisation's coordinates (modal coordinates for
 /// [`Route::Modal`](crate::Route::Modal)); readout rows are pre-multiplied by `x = T s` so
-/// node temperatures are never formed while stepping. With the packed input vector
-/// `w = [u_k; (u_{k+1} − u_k)_T]` (the difference only for the `m_T` temperature inputs):
+/// node temperatures are never formed while stepping.
+///
+/// **Shifted state.** With first-order hold the update `s_{k+1} = F s_k + Γ₀ u_k +
+/// Γ₁ (u_{k+1} − u_k)` needs the ramp `u_{k+1} − u_k` of the `m_T` temperature inputs. The
+/// stepper carries instead `ξ_k = s_k − Γ₁ u_k` (only the temperature columns of `Γ₁`), for
+/// which the ramp drops out:
 ///
 /// ```text
-/// s_{k+1} = F s_k + G w                                  (F diagonal for the modal route)
-/// instant = X T s_{k+1} + U_y u(t_{k+1}⁻)                  y at the end of the step
-/// mean    = X T (F̄ s_k + Ḡ w) + U_y ū                     exact mean of y over the step
+/// ξ_{k+1} = F ξ_k + H u_k,          H = Γ₀ + (F − I) Γ₁          (F diagonal for the modal route)
+/// ```
+///
+/// so the update costs `n·m` multiply-adds instead of `n·(m + m_T)`. Readouts are rewritten
+/// for `z = [ξ_k; u_k; u_{k+1,T}]` by substituting `s_k = ξ_k + Γ₁ u_k` (exact algebra; only
+/// rounding changes). If a caller's `u_k` differs from the previous step's `u_{k+1}` (a jump
+/// in a boundary temperature) the shift is re-based before the step, so the result is that
+/// of the unshifted recursion for any input sequence.
+///
+/// **Readouts**, from the step's start:
+///
+/// ```text
+/// instant = X T s_{k+1} + U_y u(t_{k+1}⁻)         y at the end of the step
+/// mean    = X T (F̄ s_k + Ḡ w) + U_y ū            exact mean of y over the step
 /// ```
 ///
 /// where `u(t_{k+1}⁻)` is `u_{k+1}` for temperature inputs and the held `u_k` for heat flows,
-/// and `ū = (u_k + u_{k+1})/2` for temperature inputs, `u_k` for heat flows.
+/// and `ū = (u_k + u_{k+1})/2` for temperature inputs, `u_k` for heat flows. Both are one
+/// matrix over `z`, so a step is two matrix–vector products, `out = O z` and
+/// `ξ ← F ξ + H u_k`, run back to back inside one function compiled for the processor's
+/// widest vector units (`packed.rs`).
 ///
-/// The instant readout is evaluated from the step's start too, `X T (F s_k + G w) + U_y…`,
-/// so both readouts are one product with one matrix. With `s` and `w` side by side in one
-/// vector `z = [s; w]`, a step is two matrix–vector products: `[Φ | G]·z` (block) or
-/// `F∘s + G·w` (modal) for the state, and `[[X T F̄ | X T Ḡ + U_y/2…]; [X T F | X T G +
-/// U_y…]]·z` for the outputs, each matrix packed in panels of 4 or 8 rows (`packed.rs`) and
-/// run by a kernel chosen once at construction from the processor's features (AVX2 + FMA
-/// where present).
-///
-/// Cost per step: `n·(m + m_T) + (p_i + p_m)·(n + m + m_T)` multiply-adds, plus `n²` for the
-/// block route; nothing else grows with `n`.
+/// Cost per step: `n·m + (p_i + p_m)·(n + m + m_T)` multiply-adds, plus `n²` for the block
+/// route; nothing else grows with `n`.
 #[derive(Clone, Debug)]
 pub struct Stepper {
     pub(crate) n: usize,
@@ -44,16 +56,26 @@ pub struct Stepper {
     kernel: Kernel,
     /// Modal route: the diagonal of `F`; block route: `None` (`Φ` is inside `advance`).
     decay: Option<Vec<f64>>,
-    /// `[Φ | G]` (block) or `G` (modal), `n` rows.
+    /// `[Φ | H]` (block) or `H` (modal), `n` rows.
     advance: Panels,
-    /// Both readouts from the state and inputs at the step's start, `p_m + p_i` rows:
-    /// `[[X T F̄ | X T Ḡ + U_y…]; [X T F | X T G + U_y…]]` (means, then instant values).
+    /// Both readouts over `z`, `p_m + p_i` rows (means, then instant values).
     outputs: Panels,
-    /// `[X T | U_y…]`, `p_i` rows, row by row, for the thermostats.
-    pub(crate) inst_packed: Packed,
+    /// Instant readout rows over `[ξ_{k+1}; u_k; u_{k+1,T}]` (the end of a step), for the
+    /// thermostats.
+    pub(crate) inst_end: Packed,
+    /// Instant readout rows over `[ξ_k; u_k]` (the start of a step), for the thermostats.
+    inst_now: Packed,
+    /// `Γ₁` (temperature columns), `n × m_T`, in the state's coordinates.
+    shift: DMatrix<f64>,
+    /// `T Γ₁` in node coordinates (`Γ₁` for the block route), `n × m_T`.
+    shift_nodes: DMatrix<f64>,
     to_nodes: Option<Arc<ModalBasis>>,
-    /// `z = [s; w]`, length `n + m + m_T`.
+    /// `z = [ξ; u_k; u_{k+1,T}]`, length `n + m + m_T`. Until the first step after
+    /// [`Stepper::set_state`], `z[..n]` holds the plain state `s` (`shifted == false`).
     pub(crate) z: Vec<f64>,
+    /// A second `z`: [`Stepper::step`] writes the next state here and swaps.
+    spare: Vec<f64>,
+    shifted: bool,
     pub(crate) s_next: Vec<f64>,
     /// `[mean; instant]`, `p_m + p_i`.
     out: Vec<f64>,
@@ -67,6 +89,48 @@ fn join(a: &DMatrix<f64>, b: &DMatrix<f64>, cols: &[usize], scale: f64) -> DMatr
     out.columns_mut(0, a.ncols()).copy_from(a);
     for (k, &j) in cols.iter().enumerate() {
         out.set_column(a.ncols() + k, &(b.column(j) * scale));
+    }
+    out
+}
+
+/// Rows `[R_s | R_u | R_d]` over `[s_k; u_k; u_{k+1,T} − u_{k,T}]` rewritten over
+/// `[ξ_k; u_k; u_{k+1,T}]` with `s_k = ξ_k + Γ₁ u_{k,T}`:
+/// `[R_s | R_u + (R_s Γ₁ − R_d) on the T columns | R_d]`.
+fn rebase_start(
+    r: &DMatrix<f64>,
+    n: usize,
+    m: usize,
+    temp: &[usize],
+    g1: &DMatrix<f64>,
+) -> DMatrix<f64> {
+    let mut out = r.clone();
+    let rs_g1 = r.columns(0, n) * g1;
+    for (k, &j) in temp.iter().enumerate() {
+        let add = rs_g1.column(k) - r.column(n + m + k);
+        let mut col = out.column_mut(n + j);
+        col += add;
+    }
+    out
+}
+
+/// Rows `[R_s | R_u | R_d]` over `[s_{k+1}; u_k; u_{k+1,T} − u_{k,T}]` rewritten over
+/// `[ξ_{k+1}; u_k; u_{k+1,T}]` with `s_{k+1} = ξ_{k+1} + Γ₁ u_{k+1,T}`:
+/// `[R_s | R_u − R_d on the T columns | R_d + R_s Γ₁]`.
+fn rebase_end(
+    r: &DMatrix<f64>,
+    n: usize,
+    m: usize,
+    temp: &[usize],
+    g1: &DMatrix<f64>,
+) -> DMatrix<f64> {
+    let mut out = r.clone();
+    let rs_g1 = r.columns(0, n) * g1;
+    for (k, &j) in temp.iter().enumerate() {
+        let rd = r.column(n + m + k).clone_owned();
+        let mut col = out.column_mut(n + j);
+        col -= &rd;
+        let mut col = out.column_mut(n + m + k);
+        col += rs_g1.column(k);
     }
     out
 }
@@ -86,49 +150,77 @@ impl Stepper {
         let temp_inputs: Vec<usize> = (0..m)
             .filter(|&j| disc.input_kinds()[j] == InputKind::Temperature)
             .collect();
+        let mt = temp_inputs.len();
         let in_state = |x: &DMatrix<f64>| match &disc.to_nodes {
             Some(b) => x * &b.t,
             None => x.clone(),
         };
+        let g1 = join(&DMatrix::zeros(n, 0), &disc.gamma1, &temp_inputs, 1.0);
         let g = join(&disc.gamma0, &disc.gamma1, &temp_inputs, 1.0);
         let mean_g = join(&disc.mean_gamma0, &disc.mean_gamma1, &temp_inputs, 1.0);
         let xt_inst = in_state(&instant.x);
         let xt_mean = in_state(&mean.x);
         let inst_w = join(&instant.u, &instant.u, &temp_inputs, 1.0);
         let mean_w = &xt_mean * &mean_g + join(&mean.u, &mean.u, &temp_inputs, 0.5);
+        let scale_cols = |x: &DMatrix<f64>, d: &nalgebra::DVector<f64>| {
+            let mut out = x.clone();
+            for (mut col, di) in out.column_iter_mut().zip(d.iter()) {
+                col *= *di;
+            }
+            out
+        };
         let mean_s = match &disc.mean_transition {
             Transition::Dense(f) => &xt_mean * f,
+            Transition::Diagonal(d) => scale_cols(&xt_mean, d),
+        };
+        // F Γ₁ − Γ₁ on the temperature columns of Γ₀ gives H.
+        let mut h = disc.gamma0.clone();
+        let (decay, inst_s, f_g1) = match &disc.transition {
+            Transition::Dense(f) => (None, &xt_inst * f, f * &g1),
             Transition::Diagonal(d) => {
-                let mut out = xt_mean;
-                for (mut col, di) in out.column_iter_mut().zip(d.iter()) {
-                    col *= *di;
+                let mut fg = g1.clone();
+                for (i, di) in d.iter().enumerate() {
+                    fg.row_mut(i).scale_mut(*di);
                 }
-                out
+                let mut padded = d.as_slice().to_vec();
+                padded.resize(n.div_ceil(PANEL) * PANEL, 0.0);
+                (Some(padded), scale_cols(&xt_inst, d), fg)
             }
         };
-        let (decay, advance, inst_s) = match &disc.transition {
-            Transition::Dense(f) => (None, Panels::from_blocks(f, &g), &xt_inst * f),
-            Transition::Diagonal(d) => {
-                let mut xf = xt_inst.clone();
-                for (mut col, di) in xf.column_iter_mut().zip(d.iter()) {
-                    col *= *di;
-                }
-                (Some(d.as_slice().to_vec()), Panels::from_matrix(&g), xf)
-            }
+        for (k, &j) in temp_inputs.iter().enumerate() {
+            let add = f_g1.column(k) - g1.column(k);
+            let mut col = h.column_mut(j);
+            col += add;
+        }
+        let advance = match &disc.transition {
+            Transition::Dense(f) => Panels::from_blocks(f, &h),
+            Transition::Diagonal(_) => Panels::from_matrix(&h),
         };
-        let wl = m + temp_inputs.len();
+        let wl = m + mt;
         let (p_mean, p_inst) = (mean.outputs(), instant.outputs());
-        let mut inst_full = DMatrix::zeros(p_inst, n + wl);
-        inst_full.columns_mut(0, n).copy_from(&xt_inst);
-        inst_full.columns_mut(n, wl).copy_from(&inst_w);
-        let mut out_s = DMatrix::zeros(p_mean + p_inst, n);
-        out_s.rows_mut(0, p_mean).copy_from(&mean_s);
-        out_s.rows_mut(p_mean, p_inst).copy_from(&inst_s);
-        let mut out_w = DMatrix::zeros(p_mean + p_inst, wl);
-        out_w.rows_mut(0, p_mean).copy_from(&mean_w);
-        out_w
-            .rows_mut(p_mean, p_inst)
+        let mut raw_out = DMatrix::zeros(p_mean + p_inst, n + wl);
+        raw_out.view_mut((0, 0), (p_mean, n)).copy_from(&mean_s);
+        raw_out
+            .view_mut((p_mean, 0), (p_inst, n))
+            .copy_from(&inst_s);
+        raw_out.view_mut((0, n), (p_mean, wl)).copy_from(&mean_w);
+        raw_out
+            .view_mut((p_mean, n), (p_inst, wl))
             .copy_from(&(&xt_inst * &g + &inst_w));
+        let outputs = rebase_start(&raw_out, n, m, &temp_inputs, &g1);
+        let mut raw_inst = DMatrix::zeros(p_inst, n + wl);
+        raw_inst.columns_mut(0, n).copy_from(&xt_inst);
+        raw_inst.columns_mut(n, wl).copy_from(&inst_w);
+        let inst_end = rebase_end(&raw_inst, n, m, &temp_inputs, &g1);
+        let mut raw_now = raw_inst.clone();
+        raw_now.columns_mut(n + m, mt).fill(0.0);
+        let inst_now = rebase_start(&raw_now, n, m, &temp_inputs, &g1)
+            .columns(0, n + m)
+            .into_owned();
+        let shift_nodes = match &disc.to_nodes {
+            Some(b) => &b.t * &g1,
+            None => g1.clone(),
+        };
         Ok(Stepper {
             n,
             m,
@@ -137,10 +229,15 @@ impl Stepper {
             kernel: Kernel::detect(),
             decay,
             advance,
-            outputs: Panels::from_blocks(&out_s, &out_w),
-            inst_packed: Packed::from_matrix(&inst_full),
+            outputs: Panels::from_matrix(&outputs),
+            inst_end: Packed::from_matrix(&inst_end),
+            inst_now: Packed::from_matrix(&inst_now),
+            shift: g1,
+            shift_nodes,
             to_nodes: disc.to_nodes.clone(),
             z: vec![0.0; n + wl],
+            spare: vec![0.0; n + wl],
+            shifted: false,
             s_next: vec![0.0; n],
             out: vec![0.0; p_mean + p_inst],
             p_mean,
@@ -148,20 +245,15 @@ impl Stepper {
         })
     }
 
-    /// `G e` for a packed input vector `e` (length `m + m_T`): the state change over one step
-    /// due to `e` alone (setup only; allocates).
+    /// `H e` for heat-flow inputs `e` (length `m`; temperature entries must be 0): the
+    /// state change over one step due to `e` alone (setup only; allocates).
     pub(crate) fn input_response(&self, e: &[f64]) -> Vec<f64> {
         let cols = self.advance.cols();
         let mut x = vec![0.0; cols];
         x[cols - e.len()..].copy_from_slice(e);
         let mut out = vec![0.0; self.n];
-        self.advance.gemv(self.kernel, &x, &mut out, false);
+        self.advance.gemv(self.kernel, &x, &mut out, Init::Set);
         out
-    }
-
-    /// Length of the packed input vector `w` (`m + m_T`).
-    pub(crate) fn packed_inputs(&self) -> usize {
-        self.z.len() - self.n
     }
 
     /// Sets the node temperatures `x` (°C), length `n`.
@@ -175,6 +267,7 @@ impl Stepper {
             Some(b) => b.state_to_modal_into(x, s),
             None => s.copy_from_slice(x),
         }
+        self.shifted = false;
     }
 
     /// Writes the node temperatures `x` (°C) into `out`, length `n`.
@@ -187,6 +280,15 @@ impl Stepper {
         match &self.to_nodes {
             Some(b) => b.modal_to_state_into(s, out),
             None => out.copy_from_slice(s),
+        }
+        if self.shifted {
+            // x = T (ξ + Γ₁ u_T) with u_T the last step's end temperatures.
+            let tail = &self.z[self.n + self.m..];
+            for (col, &u) in self.shift_nodes.column_iter().zip(tail) {
+                for (xi, g) in out.iter_mut().zip(col.iter()) {
+                    *xi += g * u;
+                }
+            }
         }
     }
 
@@ -216,61 +318,169 @@ impl Stepper {
     /// # Panics
     /// If either slice's length is not `m`.
     pub fn step(&mut self, u_k: &[f64], u_next: &[f64]) {
-        self.load_inputs(u_k, u_next);
-        self.advance();
-        self.finish();
+        assert!(
+            u_k.len() == self.m && u_next.len() == self.m,
+            "input lengths"
+        );
+        match self.kernel {
+            // SAFETY: `Plain` is baseline code.
+            Kernel::Portable => unsafe { self.step_in::<Plain, 2>(u_k, u_next) },
+            // SAFETY (both arms): the fused forms are only constructed after
+            // `is_x86_feature_detected!` reported their features.
+            #[cfg(target_arch = "x86_64")]
+            Kernel::Avx2Fma => unsafe { step_avx2(self, u_k, u_next) },
+            #[cfg(target_arch = "x86_64")]
+            Kernel::Avx512 => unsafe { step_avx512(self, u_k, u_next) },
+        }
     }
 
-    /// Fills `w = [u_k; (u_{k+1} − u_k)_T]`.
-    pub(crate) fn load_inputs(&mut self, u_k: &[f64], u_next: &[f64]) {
+    /// The whole of [`Stepper::step`], inlined into one function per kernel form: load the
+    /// inputs, `out = O z`, `ξ_next = F ξ + H u_k` written into the spare buffer, swap.
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions.
+    #[inline(always)]
+    unsafe fn step_in<V: Lane8, const B: usize>(&mut self, u_k: &[f64], u_next: &[f64]) {
+        let (n, m) = (self.n, self.m);
+        self.align(u_k);
+        {
+            let w = &mut self.z[n..];
+            let (dst, dst_rest) = w[..m].as_chunks_mut::<PANEL>();
+            let (src, src_rest) = u_k.as_chunks::<PANEL>();
+            for (d, s) in dst.iter_mut().zip(src) {
+                // SAFETY: forwarded from this function's contract.
+                unsafe { V::store(V::load(s), d) };
+            }
+            for (d, s) in dst_rest.iter_mut().zip(src_rest) {
+                *d = *s;
+            }
+            for (slot, &j) in w[m..].iter_mut().zip(&self.temp_inputs) {
+                *slot = u_next[j];
+            }
+        }
+        // SAFETY: forwarded from this function's contract.
+        unsafe {
+            self.outputs
+                .gemv_in::<V, B>(&self.z, &mut self.out, Init::Set);
+            match &self.decay {
+                None => self
+                    .advance
+                    .gemv_in::<V, B>(&self.z[..n + m], &mut self.spare, Init::Set),
+                Some(d) => {
+                    let (s, w) = self.z.split_at(n);
+                    self.advance
+                        .gemv_in::<V, B>(&w[..m], &mut self.spare, Init::Scaled(d, s));
+                }
+            }
+        }
+        std::mem::swap(&mut self.z, &mut self.spare);
+        // The new `z` keeps this step's end temperatures (for `align` and `state_into`).
+        let (z, spare) = (&mut self.z, &self.spare);
+        for (t, s) in z[n + m..].iter_mut().zip(&spare[n + m..]) {
+            *t = *s;
+        }
+    }
+
+    /// Re-bases the shifted state on the temperatures in `u_k`: afterwards
+    /// `z[..n] = ξ = s − Γ₁ u_{k,T}` and the tail of `z` holds `u_{k,T}`.
+    #[inline]
+    pub(crate) fn align(&mut self, u_k: &[f64]) {
         assert_eq!(u_k.len(), self.m, "u_k length");
+        let (n, m) = (self.n, self.m);
+        let (s, rest) = self.z.split_at_mut(n);
+        let tail = &mut rest[m..];
+        let mut same = self.shifted;
+        if same {
+            for (t, &j) in tail.iter().zip(&self.temp_inputs) {
+                same &= *t == u_k[j];
+            }
+        }
+        if same {
+            return;
+        }
+        // ξ ← ξ + Γ₁ (t_old − u_{k,T}), with t_old = 0 for a plain state.
+        for ((col, t), &j) in self
+            .shift
+            .column_iter()
+            .zip(tail.iter_mut())
+            .zip(&self.temp_inputs)
+        {
+            let old = if self.shifted { *t } else { 0.0 };
+            let d = old - u_k[j];
+            if d != 0.0 {
+                for (si, g) in s.iter_mut().zip(col.iter()) {
+                    *si += g * d;
+                }
+            }
+            *t = u_k[j];
+        }
+        self.shifted = true;
+    }
+
+    /// Re-bases the state on `u_k` and fills `z[n..] = [u_k; u_{k+1,T}]`.
+    pub(crate) fn load_inputs(&mut self, u_k: &[f64], u_next: &[f64]) {
         assert_eq!(u_next.len(), self.m, "u_next length");
+        self.align(u_k);
         let (m, n) = (self.m, self.n);
         let w = &mut self.z[n..];
         w[..m].copy_from_slice(u_k);
         for (slot, &j) in w[m..].iter_mut().zip(&self.temp_inputs) {
-            *slot = u_next[j] - u_k[j];
+            *slot = u_next[j];
         }
     }
 
-    /// `s_next = F s + G w` (does not touch `s`).
+    /// `s_next = F ξ + H u_k` (does not touch `ξ`).
     pub(crate) fn advance(&mut self) {
+        let (n, m) = (self.n, self.m);
         match &self.decay {
             None => self
                 .advance
-                .gemv(self.kernel, &self.z, &mut self.s_next, false),
+                .gemv(self.kernel, &self.z[..n + m], &mut self.s_next, Init::Set),
             Some(d) => {
-                let (s, w) = self.z.split_at(self.n);
-                for ((next, di), si) in self.s_next.iter_mut().zip(d).zip(s) {
-                    *next = di * si;
-                }
-                self.advance.gemv(self.kernel, w, &mut self.s_next, true);
+                let (s, w) = self.z.split_at(n);
+                self.advance
+                    .gemv(self.kernel, &w[..m], &mut self.s_next, Init::Scaled(d, s));
             }
         }
     }
 
-    /// Both readouts from `s` and `w` (with `s_next = F s + G w`), then `s ← s_next`.
+    /// Both readouts from `ξ` and the inputs, then `ξ ← s_next`.
     pub(crate) fn finish(&mut self) {
         self.outputs
-            .gemv(self.kernel, &self.z, &mut self.out, false);
+            .gemv(self.kernel, &self.z, &mut self.out, Init::Set);
         self.z[..self.n].copy_from_slice(&self.s_next);
     }
 
-    /// Instant output `row` for the state `s` and the packed inputs `w`.
+    /// Instant output `row` at the end of a step from the shifted state `s` and the inputs
+    /// `w = [u_k; u_{k+1,T}]` (or `[u_k]`, for heat-flow responses).
     pub(crate) fn instant_row(&self, row: usize, s: &[f64], w: &[f64]) -> f64 {
-        let r = self.inst_packed.row(row);
+        let r = self.inst_end.row(row);
         dot(&r[..self.n], s) + dot(&r[self.n..], w)
     }
 
-    /// Instant output `row` for the state in `s_next` and the inputs in `w`.
+    /// Instant output `row` for the state in `s_next` and the inputs in `z`.
     pub(crate) fn instant_row_next(&self, row: usize) -> f64 {
         self.instant_row(row, &self.s_next, &self.z[self.n..])
     }
 
     /// Instant output `row` for the current state and the inputs `u_k` at the step's start
-    /// (the ramp part of `w` is zero at that instant).
+    /// (call [`Stepper::align`] with `u_k` first).
     pub(crate) fn instant_row_now(&self, row: usize, u_k: &[f64]) -> f64 {
-        let r = self.inst_packed.row(row);
-        dot(&r[..self.n], &self.z[..self.n]) + dot(&r[self.n..self.n + self.m], u_k)
+        let r = self.inst_now.row(row);
+        dot(&r[..self.n], &self.z[..self.n]) + dot(&r[self.n..], u_k)
     }
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2,fma")]
+unsafe fn step_avx2(s: &mut Stepper, u_k: &[f64], u_next: &[f64]) {
+    // SAFETY: this function's features are those of `Avx2`.
+    unsafe { s.step_in::<Avx2, 4>(u_k, u_next) }
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f,avx2,fma")]
+unsafe fn step_avx512(s: &mut Stepper, u_k: &[f64], u_next: &[f64]) {
+    // SAFETY: this function's features include those of `Avx512`.
+    unsafe { s.step_in::<Avx512, 8>(u_k, u_next) }
 }

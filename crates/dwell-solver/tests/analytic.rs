@@ -61,19 +61,19 @@ fn checks_md_one_node_values() {
             s.step(&[0.0, 0.0], &[0.0, 0.0]);
         }
         let t8 = s.instant()[0];
-        dwell_testkit::record("solver", dwell_testkit::Check {
-            area: "Analytic solutions",
-            what: &format!("one node H 200 W/K, C 20 MJ/K ({route:?} route): Φ, Γ and T(8 h)"),
-            source: "T_e + (T₀ − T_e)·e^(−t/RC); values in CHECKS.md (scipy)",
-            tolerance: "Φ, Γ 1e-12; T(8 h) 5e-6 K (5 printed digits)",
-            obtained: format!("Φ {:.12}, T(8 h) {t8:.6} °C", d.phi()[(0, 0)]),
-            pass: (t8 - 14.99523).abs() < 5e-6 && (d.phi()[(0, 0)] - 0.964640293483).abs() < 1e-12,
-        });
-        assert!(
-            (t8 - 14.99523).abs() < 5e-6,
-            "{route:?} T(8h) = {}",
-            t8
+        dwell_testkit::record(
+            "solver",
+            dwell_testkit::Check {
+                area: "Analytic solutions",
+                what: &format!("one node H 200 W/K, C 20 MJ/K ({route:?} route): Φ, Γ and T(8 h)"),
+                source: "T_e + (T₀ − T_e)·e^(−t/RC); values in CHECKS.md (scipy)",
+                tolerance: "Φ, Γ 1e-12; T(8 h) 5e-6 K (5 printed digits)",
+                obtained: format!("Φ {:.12}, T(8 h) {t8:.6} °C", d.phi()[(0, 0)]),
+                pass: (t8 - 14.99523).abs() < 5e-6
+                    && (d.phi()[(0, 0)] - 0.964640293483).abs() < 1e-12,
+            },
         );
+        assert!((t8 - 14.99523).abs() < 5e-6, "{route:?} T(8h) = {}", t8);
     }
 }
 
@@ -180,7 +180,9 @@ fn steady_state_is_outdoor_plus_heat_over_conductance_and_singular_k_is_an_error
     let x = dwell_solver::steady_state(&one_node(200.0, 20e6), &[-5.0, 1000.0]).unwrap();
     assert!((x[0] - 0.0).abs() < 1e-12, "{x:?}");
     let floating = common::random_network(3, 10, 2, false);
-    let err = dwell_solver::steady_state(&floating, &[0.0, 0.0, 100.0, 0.0]).unwrap_err().to_string();
+    let err = dwell_solver::steady_state(&floating, &[0.0, 0.0, 100.0, 0.0])
+        .unwrap_err()
+        .to_string();
     assert!(err.contains("no path to a boundary temperature"), "{err}");
     // And a long stepped run converges to the steady state of a connected network.
     let sys = common::random_network(4, 8, 2, true);
@@ -196,6 +198,11 @@ fn steady_state_is_outdoor_plus_heat_over_conductance_and_singular_k_is_an_error
     let mut x = vec![0.0; 8];
     s.state_into(&mut x);
     for i in 0..8 {
-        assert!((x[i] - want[i]).abs() < 1e-8, "node {i}: {} vs {}", x[i], want[i]);
+        assert!(
+            (x[i] - want[i]).abs() < 1e-8,
+            "node {i}: {} vs {}",
+            x[i],
+            want[i]
+        );
     }
 }
