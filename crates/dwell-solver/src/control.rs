@@ -42,8 +42,11 @@ pub(crate) struct Control {
     channels: Vec<ControlChannel>,
     /// `M`, `q × q`, row-major: output of channel row per unit fraction of channel column.
     influence: Vec<f64>,
-    /// `G e_c`, the state change per unit fraction, one row per channel.
+    /// `H e_c`, the state change per unit fraction, one row per channel.
     state_gain: Packed,
+    /// The readouts' change per unit fraction (means, then instant values), one row per
+    /// channel.
+    output_gain: Packed,
     rhs: Vec<f64>,
     fraction: Vec<f64>,
     now: Vec<f64>,
@@ -58,11 +61,11 @@ impl Stepper {
         let q = channels.len();
         let mut problems = Vec::new();
         for (c, ch) in channels.iter().enumerate() {
-            if ch.output >= self.inst_end.rows() {
+            let p_inst = self.out.len() - self.p_mean;
+            if ch.output >= p_inst {
                 problems.push(format!(
-                    "channel {c}: output {} is not an instant readout row (0..{})",
-                    ch.output,
-                    self.inst_end.rows()
+                    "channel {c}: output {} is not an instant readout row (0..{p_inst})",
+                    ch.output
                 ));
             }
             if channels[..c].iter().any(|o| o.output == ch.output) {
@@ -86,6 +89,7 @@ impl Stepper {
             return Err(SolverError::Control(problems.join("; ")));
         }
         let mut gains = DMatrix::zeros(q, self.n);
+        let mut out_gains = DMatrix::zeros(q, self.out.len());
         let mut influence = vec![0.0; q * q];
         for (c, ch) in channels.iter().enumerate() {
             let mut e = vec![0.0; self.m];
@@ -96,8 +100,12 @@ impl Stepper {
             for (i, v) in ds.iter().enumerate() {
                 gains[(c, i)] = *v;
             }
+            let dy = self.output_response(&e);
+            for (i, v) in dy.iter().enumerate() {
+                out_gains[(c, i)] = *v;
+            }
             for (r, other) in channels.iter().enumerate() {
-                influence[r * q + c] = self.instant_row(other.output, &ds, &e);
+                influence[r * q + c] = dy[self.p_mean + other.output];
             }
         }
         for c in 0..q {
@@ -112,6 +120,7 @@ impl Stepper {
             channels: channels.to_vec(),
             influence,
             state_gain: Packed::from_matrix(&gains),
+            output_gain: Packed::from_matrix(&out_gains),
             rhs: vec![0.0; q],
             fraction: vec![0.0; q],
             now: vec![0.0; q],
@@ -161,10 +170,12 @@ impl Stepper {
             "channel slice lengths"
         );
         self.load_inputs(u_k, u_next);
-        self.advance();
+        // Readouts and next state with the heaters off; the instant rows are the free
+        // end-of-step temperatures `y⁰`.
+        self.outputs_and_next();
         for c in 0..q {
             ctl.rhs[c] = if enabled[c] {
-                setpoint_c[c] - self.instant_row_next(ctl.channels[c].output)
+                setpoint_c[c] - self.out[self.p_mean + ctl.channels[c].output]
             } else {
                 0.0
             };
@@ -177,7 +188,7 @@ impl Stepper {
             &mut ctl.scratch,
         );
         self.apply(&ctl, u_k, fraction_out);
-        self.finish();
+        self.commit();
         self.control = Some(ctl);
     }
 
@@ -206,13 +217,14 @@ impl Stepper {
         }
         thermostat.decide(&ctl.now, setpoint_c, enabled, &mut ctl.fraction);
         self.load_inputs(u_k, u_next);
-        self.advance();
+        self.outputs_and_next();
         self.apply(&ctl, u_k, fraction_out);
-        self.finish();
+        self.commit();
         self.control = Some(ctl);
     }
 
-    /// Adds the chosen fractions' powers to `u_k`, `w` and `s_next`.
+    /// Adds the chosen fractions' powers to `u_k` and `z`, their state change to `s_next`
+    /// and their readout change to the outputs.
     fn apply(&mut self, ctl: &Control, u_k: &mut [f64], fraction_out: &mut [f64]) {
         for (c, ch) in ctl.channels.iter().enumerate() {
             let f = ctl.fraction[c];
@@ -226,6 +238,9 @@ impl Stepper {
             }
             for (s, g) in self.s_next.iter_mut().zip(ctl.state_gain.row(c)) {
                 *s += f * g;
+            }
+            for (y, g) in self.out.iter_mut().zip(ctl.output_gain.row(c)) {
+                *y += f * g;
             }
         }
     }

@@ -36,6 +36,7 @@ pub(crate) const PANEL: usize = 8;
 /// A dense matrix stored row by row.
 #[derive(Clone, Debug)]
 pub(crate) struct Packed {
+    #[cfg_attr(not(test), allow(dead_code))]
     rows: usize,
     cols: usize,
     data: Vec<f64>,
@@ -49,10 +50,6 @@ impl Packed {
             data.extend(m.row(i).iter().copied());
         }
         Packed { rows, cols, data }
-    }
-
-    pub(crate) fn rows(&self) -> usize {
-        self.rows
     }
 
     #[inline]

@@ -60,9 +60,6 @@ pub struct Stepper {
     advance: Panels,
     /// Both readouts over `z`, `p_m + p_i` rows (means, then instant values).
     outputs: Panels,
-    /// Instant readout rows over `[ξ_{k+1}; u_k; u_{k+1,T}]` (the end of a step), for the
-    /// thermostats.
-    pub(crate) inst_end: Packed,
     /// Instant readout rows over `[ξ_k; u_k]` (the start of a step), for the thermostats.
     inst_now: Packed,
     /// `Γ₁` (temperature columns), `n × m_T`, in the state's coordinates.
@@ -73,13 +70,11 @@ pub struct Stepper {
     /// `z = [ξ; u_k; u_{k+1,T}]`, length `n + m + m_T`. Until the first step after
     /// [`Stepper::set_state`], `z[..n]` holds the plain state `s` (`shifted == false`).
     pub(crate) z: Vec<f64>,
-    /// A second `z`: [`Stepper::step`] writes the next state here and swaps.
-    spare: Vec<f64>,
     shifted: bool,
     pub(crate) s_next: Vec<f64>,
     /// `[mean; instant]`, `p_m + p_i`.
-    out: Vec<f64>,
-    p_mean: usize,
+    pub(crate) out: Vec<f64>,
+    pub(crate) p_mean: usize,
     pub(crate) control: Option<Control>,
 }
 
@@ -109,28 +104,6 @@ fn rebase_start(
         let add = rs_g1.column(k) - r.column(n + m + k);
         let mut col = out.column_mut(n + j);
         col += add;
-    }
-    out
-}
-
-/// Rows `[R_s | R_u | R_d]` over `[s_{k+1}; u_k; u_{k+1,T} − u_{k,T}]` rewritten over
-/// `[ξ_{k+1}; u_k; u_{k+1,T}]` with `s_{k+1} = ξ_{k+1} + Γ₁ u_{k+1,T}`:
-/// `[R_s | R_u − R_d on the T columns | R_d + R_s Γ₁]`.
-fn rebase_end(
-    r: &DMatrix<f64>,
-    n: usize,
-    m: usize,
-    temp: &[usize],
-    g1: &DMatrix<f64>,
-) -> DMatrix<f64> {
-    let mut out = r.clone();
-    let rs_g1 = r.columns(0, n) * g1;
-    for (k, &j) in temp.iter().enumerate() {
-        let rd = r.column(n + m + k).clone_owned();
-        let mut col = out.column_mut(n + j);
-        col -= &rd;
-        let mut col = out.column_mut(n + m + k);
-        col += rs_g1.column(k);
     }
     out
 }
@@ -211,7 +184,6 @@ impl Stepper {
         let mut raw_inst = DMatrix::zeros(p_inst, n + wl);
         raw_inst.columns_mut(0, n).copy_from(&xt_inst);
         raw_inst.columns_mut(n, wl).copy_from(&inst_w);
-        let inst_end = rebase_end(&raw_inst, n, m, &temp_inputs, &g1);
         let mut raw_now = raw_inst.clone();
         raw_now.columns_mut(n + m, mt).fill(0.0);
         let inst_now = rebase_start(&raw_now, n, m, &temp_inputs, &g1)
@@ -230,13 +202,11 @@ impl Stepper {
             decay,
             advance,
             outputs: Panels::from_matrix(&outputs),
-            inst_end: Packed::from_matrix(&inst_end),
             inst_now: Packed::from_matrix(&inst_now),
             shift: g1,
             shift_nodes,
             to_nodes: disc.to_nodes.clone(),
             z: vec![0.0; n + wl],
-            spare: vec![0.0; n + wl],
             shifted: false,
             s_next: vec![0.0; n],
             out: vec![0.0; p_mean + p_inst],
@@ -318,46 +288,39 @@ impl Stepper {
     /// # Panics
     /// If either slice's length is not `m`.
     pub fn step(&mut self, u_k: &[f64], u_next: &[f64]) {
-        assert!(
-            u_k.len() == self.m && u_next.len() == self.m,
-            "input lengths"
-        );
+        self.load_inputs(u_k, u_next);
+        self.outputs_and_next();
+        self.commit();
+    }
+
+    /// `out = O z` and `s_next = F ξ + H u_k`, in one call into the kernel form.
+    pub(crate) fn outputs_and_next(&mut self) {
         match self.kernel {
             // SAFETY: `Plain` is baseline code.
-            Kernel::Portable => unsafe { self.step_in::<Plain, 2>(u_k, u_next) },
+            Kernel::Portable => unsafe { self.step_in::<Plain, 2>() },
             // SAFETY (both arms): the fused forms are only constructed after
             // `is_x86_feature_detected!` reported their features.
             #[cfg(target_arch = "x86_64")]
-            Kernel::Avx2Fma => unsafe { step_avx2(self, u_k, u_next) },
+            Kernel::Avx2Fma => unsafe { step_avx2(self) },
             #[cfg(target_arch = "x86_64")]
-            Kernel::Avx512 => unsafe { step_avx512(self, u_k, u_next) },
+            Kernel::Avx512 => unsafe { step_avx512(self) },
         }
     }
 
-    /// The whole of [`Stepper::step`], inlined into one function per kernel form: load the
-    /// inputs, `out = O z`, `ξ_next = F ξ + H u_k` written into the spare buffer, swap.
+    /// `ξ ← s_next`.
+    #[inline]
+    pub(crate) fn commit(&mut self) {
+        let n = self.n;
+        self.z[..n].copy_from_slice(&self.s_next);
+    }
+
+    /// Both products of a step, inlined into one function per kernel form.
     ///
     /// # Safety
     /// The processor must support `V`'s instructions.
     #[inline(always)]
-    unsafe fn step_in<V: Lane8, const B: usize>(&mut self, u_k: &[f64], u_next: &[f64]) {
+    unsafe fn step_in<V: Lane8, const B: usize>(&mut self) {
         let (n, m) = (self.n, self.m);
-        self.align(u_k);
-        {
-            let w = &mut self.z[n..];
-            let (dst, dst_rest) = w[..m].as_chunks_mut::<PANEL>();
-            let (src, src_rest) = u_k.as_chunks::<PANEL>();
-            for (d, s) in dst.iter_mut().zip(src) {
-                // SAFETY: forwarded from this function's contract.
-                unsafe { V::store(V::load(s), d) };
-            }
-            for (d, s) in dst_rest.iter_mut().zip(src_rest) {
-                *d = *s;
-            }
-            for (slot, &j) in w[m..].iter_mut().zip(&self.temp_inputs) {
-                *slot = u_next[j];
-            }
-        }
         // SAFETY: forwarded from this function's contract.
         unsafe {
             self.outputs
@@ -365,19 +328,13 @@ impl Stepper {
             match &self.decay {
                 None => self
                     .advance
-                    .gemv_in::<V, B>(&self.z[..n + m], &mut self.spare, Init::Set),
+                    .gemv_in::<V, B>(&self.z[..n + m], &mut self.s_next, Init::Set),
                 Some(d) => {
                     let (s, w) = self.z.split_at(n);
                     self.advance
-                        .gemv_in::<V, B>(&w[..m], &mut self.spare, Init::Scaled(d, s));
+                        .gemv_in::<V, B>(&w[..m], &mut self.s_next, Init::Scaled(d, s));
                 }
             }
-        }
-        std::mem::swap(&mut self.z, &mut self.spare);
-        // The new `z` keeps this step's end temperatures (for `align` and `state_into`).
-        let (z, spare) = (&mut self.z, &self.spare);
-        for (t, s) in z[n + m..].iter_mut().zip(&spare[n + m..]) {
-            *t = *s;
         }
     }
 
@@ -429,38 +386,14 @@ impl Stepper {
         }
     }
 
-    /// `s_next = F ξ + H u_k` (does not touch `ξ`).
-    pub(crate) fn advance(&mut self) {
-        let (n, m) = (self.n, self.m);
-        match &self.decay {
-            None => self
-                .advance
-                .gemv(self.kernel, &self.z[..n + m], &mut self.s_next, Init::Set),
-            Some(d) => {
-                let (s, w) = self.z.split_at(n);
-                self.advance
-                    .gemv(self.kernel, &w[..m], &mut self.s_next, Init::Scaled(d, s));
-            }
-        }
-    }
-
-    /// Both readouts from `ξ` and the inputs, then `ξ ← s_next`.
-    pub(crate) fn finish(&mut self) {
-        self.outputs
-            .gemv(self.kernel, &self.z, &mut self.out, Init::Set);
-        self.z[..self.n].copy_from_slice(&self.s_next);
-    }
-
-    /// Instant output `row` at the end of a step from the shifted state `s` and the inputs
-    /// `w = [u_k; u_{k+1,T}]` (or `[u_k]`, for heat-flow responses).
-    pub(crate) fn instant_row(&self, row: usize, s: &[f64], w: &[f64]) -> f64 {
-        let r = self.inst_end.row(row);
-        dot(&r[..self.n], s) + dot(&r[self.n..], w)
-    }
-
-    /// Instant output `row` for the state in `s_next` and the inputs in `z`.
-    pub(crate) fn instant_row_next(&self, row: usize) -> f64 {
-        self.instant_row(row, &self.s_next, &self.z[self.n..])
+    /// The outputs `O x` for `x = [0; e; 0]`: the readouts' response to inputs `e`
+    /// (length `m`) held over one step from a zero state (setup only; allocates).
+    pub(crate) fn output_response(&self, e: &[f64]) -> Vec<f64> {
+        let mut x = vec![0.0; self.z.len()];
+        x[self.n..self.n + self.m].copy_from_slice(e);
+        let mut out = vec![0.0; self.out.len()];
+        self.outputs.gemv(self.kernel, &x, &mut out, Init::Set);
+        out
     }
 
     /// Instant output `row` for the current state and the inputs `u_k` at the step's start
@@ -473,14 +406,14 @@ impl Stepper {
 
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx2,fma")]
-unsafe fn step_avx2(s: &mut Stepper, u_k: &[f64], u_next: &[f64]) {
+unsafe fn step_avx2(s: &mut Stepper) {
     // SAFETY: this function's features are those of `Avx2`.
-    unsafe { s.step_in::<Avx2, 4>(u_k, u_next) }
+    unsafe { s.step_in::<Avx2, 4>() }
 }
 
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx512f,avx2,fma")]
-unsafe fn step_avx512(s: &mut Stepper, u_k: &[f64], u_next: &[f64]) {
+unsafe fn step_avx512(s: &mut Stepper) {
     // SAFETY: this function's features include those of `Avx512`.
-    unsafe { s.step_in::<Avx512, 8>(u_k, u_next) }
+    unsafe { s.step_in::<Avx512, 8>() }
 }
