@@ -61,7 +61,7 @@ impl Stepper {
         let q = channels.len();
         let mut problems = Vec::new();
         for (c, ch) in channels.iter().enumerate() {
-            let p_inst = self.out.len() - self.p_mean;
+            let p_inst = self.work.out().len() - self.p_mean;
             if ch.output >= p_inst {
                 problems.push(format!(
                     "channel {c}: output {} is not an instant readout row (0..{p_inst})",
@@ -89,7 +89,7 @@ impl Stepper {
             return Err(SolverError::Control(problems.join("; ")));
         }
         let mut gains = DMatrix::zeros(q, self.n);
-        let mut out_gains = DMatrix::zeros(q, self.out.len());
+        let mut out_gains = DMatrix::zeros(q, self.work.out().len());
         let mut influence = vec![0.0; q * q];
         for (c, ch) in channels.iter().enumerate() {
             let mut e = vec![0.0; self.m];
@@ -175,7 +175,7 @@ impl Stepper {
         self.outputs_and_next();
         for c in 0..q {
             ctl.rhs[c] = if enabled[c] {
-                setpoint_c[c] - self.out[self.p_mean + ctl.channels[c].output]
+                setpoint_c[c] - self.work.out()[self.p_mean + ctl.channels[c].output]
             } else {
                 0.0
             };
@@ -226,6 +226,8 @@ impl Stepper {
     /// Adds the chosen fractions' powers to `u_k` and `z`, their state change to `s_next`
     /// and their readout change to the outputs.
     fn apply(&mut self, ctl: &Control, u_k: &mut [f64], fraction_out: &mut [f64]) {
+        let n = self.n;
+        let (z, s_next, out) = self.work.split();
         for (c, ch) in ctl.channels.iter().enumerate() {
             let f = ctl.fraction[c];
             fraction_out[c] = f;
@@ -234,12 +236,12 @@ impl Stepper {
             }
             for &(j, p) in &ch.weights {
                 u_k[j] += f * p;
-                self.z[self.n + j] += f * p;
+                z[n + j] += f * p;
             }
-            for (s, g) in self.s_next.iter_mut().zip(ctl.state_gain.row(c)) {
+            for (s, g) in s_next.iter_mut().zip(ctl.state_gain.row(c)) {
                 *s += f * g;
             }
-            for (y, g) in self.out.iter_mut().zip(ctl.output_gain.row(c)) {
+            for (y, g) in out.iter_mut().zip(ctl.output_gain.row(c)) {
                 *y += f * g;
             }
         }

@@ -57,6 +57,7 @@ mod readout;
 mod steady;
 mod stepper;
 mod system;
+mod work;
 
 pub use control::ControlChannel;
 pub use discretization::{Discretization, Route, MAX_STEP_S, MIN_STEP_S};

@@ -9,6 +9,7 @@ use crate::discretization::{ModalBasis, Transition};
 use crate::packed::{dot, Init, Kernel, Lane8, Packed, Panels, Plain, PANEL};
 #[cfg(target_arch = "x86_64")]
 use crate::packed::{Avx2, Avx512};
+use crate::work::Work;
 use crate::{Discretization, InputKind, Readout, SolverError};
 
 /// Steps a discretised system and evaluates readouts, allocation-free after construction.
@@ -67,13 +68,11 @@ pub struct Stepper {
     /// `T Γ₁` in node coordinates (`Γ₁` for the block route), `n × m_T`.
     shift_nodes: DMatrix<f64>,
     to_nodes: Option<Arc<ModalBasis>>,
-    /// `z = [ξ; u_k; u_{k+1,T}]`, length `n + m + m_T`. Until the first step after
-    /// [`Stepper::set_state`], `z[..n]` holds the plain state `s` (`shifted == false`).
-    pub(crate) z: Vec<f64>,
+    /// `z = [ξ; u_k; u_{k+1,T}]` (length `n + m + m_T`; until the first step after
+    /// [`Stepper::set_state`], `z[..n]` holds the plain state `s`, `shifted == false`),
+    /// `s_next` (length `n`) and the readouts `[mean; instant]` (`p_m + p_i`).
+    pub(crate) work: Work,
     shifted: bool,
-    pub(crate) s_next: Vec<f64>,
-    /// `[mean; instant]`, `p_m + p_i`.
-    pub(crate) out: Vec<f64>,
     pub(crate) p_mean: usize,
     pub(crate) control: Option<Control>,
 }
@@ -206,10 +205,8 @@ impl Stepper {
             shift: g1,
             shift_nodes,
             to_nodes: disc.to_nodes.clone(),
-            z: vec![0.0; n + wl],
+            work: Work::new(n + wl, n, p_mean + p_inst),
             shifted: false,
-            s_next: vec![0.0; n],
-            out: vec![0.0; p_mean + p_inst],
             p_mean,
             control: None,
         })
@@ -232,7 +229,7 @@ impl Stepper {
     /// If `x.len() != n`.
     pub fn set_state(&mut self, x: &[f64]) {
         assert_eq!(x.len(), self.n, "state length");
-        let s = &mut self.z[..self.n];
+        let s = &mut self.work.z_mut()[..self.n];
         match &self.to_nodes {
             Some(b) => b.state_to_modal_into(x, s),
             None => s.copy_from_slice(x),
@@ -246,14 +243,14 @@ impl Stepper {
     /// If `out.len() != n`.
     pub fn state_into(&self, out: &mut [f64]) {
         assert_eq!(out.len(), self.n, "state length");
-        let s = &self.z[..self.n];
+        let s = &self.work.z()[..self.n];
         match &self.to_nodes {
             Some(b) => b.modal_to_state_into(s, out),
             None => out.copy_from_slice(s),
         }
         if self.shifted {
             // x = T (ξ + Γ₁ u_T) with u_T the last step's end temperatures.
-            let tail = &self.z[self.n + self.m..];
+            let tail = &self.work.z()[self.n + self.m..];
             for (col, &u) in self.shift_nodes.column_iter().zip(tail) {
                 for (xi, g) in out.iter_mut().zip(col.iter()) {
                     *xi += g * u;
@@ -264,12 +261,12 @@ impl Stepper {
 
     /// The instant readout at the end of the last step.
     pub fn instant(&self) -> &[f64] {
-        &self.out[self.p_mean..]
+        &self.work.out()[self.p_mean..]
     }
 
     /// The mean readout over the last step.
     pub fn mean(&self) -> &[f64] {
-        &self.out[..self.p_mean]
+        &self.work.out()[..self.p_mean]
     }
 
     /// Number of states `n`.
@@ -311,7 +308,8 @@ impl Stepper {
     #[inline]
     pub(crate) fn commit(&mut self) {
         let n = self.n;
-        self.z[..n].copy_from_slice(&self.s_next);
+        let (z, s_next, _) = self.work.split();
+        z[..n].copy_from_slice(s_next);
     }
 
     /// Both products of a step, inlined into one function per kernel form.
@@ -322,17 +320,15 @@ impl Stepper {
     unsafe fn step_in<V: Lane8, const B: usize>(&mut self) {
         let (n, m) = (self.n, self.m);
         // SAFETY: forwarded from this function's contract.
+        let (z, s_next, out) = self.work.split();
         unsafe {
-            self.outputs
-                .gemv_in::<V, B>(&self.z, &mut self.out, Init::Set);
+            self.outputs.gemv_in::<V, B>(z, out, Init::Set);
             match &self.decay {
-                None => self
-                    .advance
-                    .gemv_in::<V, B>(&self.z[..n + m], &mut self.s_next, Init::Set),
+                None => self.advance.gemv_in::<V, B>(&z[..n + m], s_next, Init::Set),
                 Some(d) => {
-                    let (s, w) = self.z.split_at(n);
+                    let (s, w) = z.split_at(n);
                     self.advance
-                        .gemv_in::<V, B>(&w[..m], &mut self.s_next, Init::Scaled(d, s));
+                        .gemv_in::<V, B>(&w[..m], s_next, Init::Scaled(d, s));
                 }
             }
         }
@@ -344,7 +340,7 @@ impl Stepper {
     pub(crate) fn align(&mut self, u_k: &[f64]) {
         assert_eq!(u_k.len(), self.m, "u_k length");
         let (n, m) = (self.n, self.m);
-        let (s, rest) = self.z.split_at_mut(n);
+        let (s, rest) = self.work.z_mut().split_at_mut(n);
         let tail = &mut rest[m..];
         let mut same = self.shifted;
         if same {
@@ -379,7 +375,7 @@ impl Stepper {
         assert_eq!(u_next.len(), self.m, "u_next length");
         self.align(u_k);
         let (m, n) = (self.m, self.n);
-        let w = &mut self.z[n..];
+        let w = &mut self.work.z_mut()[n..];
         w[..m].copy_from_slice(u_k);
         for (slot, &j) in w[m..].iter_mut().zip(&self.temp_inputs) {
             *slot = u_next[j];
@@ -389,9 +385,9 @@ impl Stepper {
     /// The outputs `O x` for `x = [0; e; 0]`: the readouts' response to inputs `e`
     /// (length `m`) held over one step from a zero state (setup only; allocates).
     pub(crate) fn output_response(&self, e: &[f64]) -> Vec<f64> {
-        let mut x = vec![0.0; self.z.len()];
+        let mut x = vec![0.0; self.work.z().len()];
         x[self.n..self.n + self.m].copy_from_slice(e);
-        let mut out = vec![0.0; self.out.len()];
+        let mut out = vec![0.0; self.work.out().len()];
         self.outputs.gemv(self.kernel, &x, &mut out, Init::Set);
         out
     }
@@ -400,7 +396,7 @@ impl Stepper {
     /// (call [`Stepper::align`] with `u_k` first).
     pub(crate) fn instant_row_now(&self, row: usize, u_k: &[f64]) -> f64 {
         let r = self.inst_now.row(row);
-        dot(&r[..self.n], &self.z[..self.n]) + dot(&r[self.n..], u_k)
+        dot(&r[..self.n], &self.work.z()[..self.n]) + dot(&r[self.n..], u_k)
     }
 }
 
