@@ -6,7 +6,8 @@
 //! offsets are fixed and small (no accidental 4 KiB-apart placement of a store and a later
 //! load). Measured: no change in the fastest-of-N year at 40 states on the shared
 //! development machine, where launches of the same binary still fall into two groups
-//! (0.57–0.60 ms and 0.87–1.0 ms) for a reason not yet found (see docs/performance.md).
+//! (0.57–0.60 ms and 0.87–1.0 ms) with address-space randomisation on or off alike, so
+//! the spread comes from the machine, not from where the data lands.
 
 use crate::packed::{Line, PANEL};
 
