@@ -285,9 +285,44 @@ impl Stepper {
     /// # Panics
     /// If either slice's length is not `m`.
     pub fn step(&mut self, u_k: &[f64], u_next: &[f64]) {
-        self.load_inputs(u_k, u_next);
-        self.outputs_and_next();
-        self.commit();
+        assert!(
+            u_k.len() == self.m && u_next.len() == self.m,
+            "input lengths"
+        );
+        match self.kernel {
+            // SAFETY: `Plain` is baseline code.
+            Kernel::Portable => unsafe { self.whole_step::<Plain, 2>(u_k, u_next) },
+            // SAFETY (both arms): the fused forms are only constructed after
+            // `is_x86_feature_detected!` reported their features.
+            #[cfg(target_arch = "x86_64")]
+            Kernel::Avx2Fma => unsafe { whole_step_avx2(self, u_k, u_next) },
+            #[cfg(target_arch = "x86_64")]
+            Kernel::Avx512 => unsafe { whole_step_avx512(self, u_k, u_next) },
+        }
+    }
+
+    /// All of [`Stepper::step`] in one function per kernel form: re-base, load the inputs,
+    /// both products, `ξ ← s_next`, with the copies done in vector registers (no calls).
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions; `u_k` and `u_next` have length `m`.
+    #[inline(always)]
+    unsafe fn whole_step<V: Lane8, const B: usize>(&mut self, u_k: &[f64], u_next: &[f64]) {
+        let (n, m) = (self.n, self.m);
+        self.align(u_k);
+        {
+            let w = &mut self.work.z_mut()[n..];
+            // SAFETY: forwarded from this function's contract.
+            unsafe { copy_lanes::<V>(&mut w[..m], u_k) };
+            for (slot, &j) in w[m..].iter_mut().zip(&self.temp_inputs) {
+                *slot = u_next[j];
+            }
+        }
+        // SAFETY: forwarded from this function's contract.
+        unsafe { self.step_in::<V, B>() };
+        let (z, s_next, _) = self.work.split();
+        // SAFETY: forwarded from this function's contract.
+        unsafe { copy_lanes::<V>(&mut z[..n], s_next) };
     }
 
     /// `out = O z` and `s_next = F ξ + H u_k`, in one call into the kernel form.
@@ -336,7 +371,7 @@ impl Stepper {
 
     /// Re-bases the shifted state on the temperatures in `u_k`: afterwards
     /// `z[..n] = ξ = s − Γ₁ u_{k,T}` and the tail of `z` holds `u_{k,T}`.
-    #[inline]
+    #[inline(always)]
     pub(crate) fn align(&mut self, u_k: &[f64]) {
         assert_eq!(u_k.len(), self.m, "u_k length");
         let (n, m) = (self.n, self.m);
@@ -398,6 +433,37 @@ impl Stepper {
         let r = self.inst_now.row(row);
         dot(&r[..self.n], &self.work.z()[..self.n]) + dot(&r[self.n..], u_k)
     }
+}
+
+/// `dst ← src` (same length), eight values at a time in `V`'s registers.
+///
+/// # Safety
+/// The processor must support `V`'s instructions.
+#[inline(always)]
+unsafe fn copy_lanes<V: Lane8>(dst: &mut [f64], src: &[f64]) {
+    let (d, d_rest) = dst.as_chunks_mut::<PANEL>();
+    let (s, s_rest) = src.as_chunks::<PANEL>();
+    for (d, s) in d.iter_mut().zip(s) {
+        // SAFETY: forwarded from this function's contract.
+        unsafe { V::store(V::load(s), d) };
+    }
+    for (d, s) in d_rest.iter_mut().zip(s_rest) {
+        *d = *s;
+    }
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2,fma")]
+unsafe fn whole_step_avx2(s: &mut Stepper, u_k: &[f64], u_next: &[f64]) {
+    // SAFETY: this function's features are those of `Avx2`.
+    unsafe { s.whole_step::<Avx2, 4>(u_k, u_next) }
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f,avx2,fma")]
+unsafe fn whole_step_avx512(s: &mut Stepper, u_k: &[f64], u_next: &[f64]) {
+    // SAFETY: this function's features include those of `Avx512`.
+    unsafe { s.whole_step::<Avx512, 8>(u_k, u_next) }
 }
 
 #[cfg(target_arch = "x86_64")]
