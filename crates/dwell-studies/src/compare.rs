@@ -14,7 +14,7 @@
 use dwell_model::{House, ModelError, ModelFile};
 use dwell_weather::WeatherSeries;
 use rayon::prelude::*;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use serde_json::Value;
 
 use crate::simulate::{simulate, SimOptions, StudyError};
@@ -62,7 +62,7 @@ pub fn grid<T: Clone>(lists: &[Vec<T>]) -> Vec<Vec<T>> {
 }
 
 /// One row of the comparison.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct VariantRow {
     /// Variant name.
     pub variant: String,
@@ -93,7 +93,7 @@ pub struct VariantRow {
 }
 
 /// The comparison.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct Comparison {
     /// Base model name.
     pub model: String,
