@@ -180,8 +180,9 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
         _ => anyhow::Error::new(e),
     })?;
     let out = dwell_report::OutputDir::create(&args.out)?;
-    let mut written = dwell_report::write_compare(&out, &cmp)?;
-    written.extend(dwell_report::write_compare_report(&out, &cmp, &variants[0].house)?);
+    let mut written = dwell_report::write_compare(&out, &cmp, &variants[0].house)?;
+    // Drawn from the files just written, as `dwell chart` redraws them.
+    written.extend(super::chart::draw_study(&out, args.quiet)?);
     if !args.quiet {
         print!("{}", table(&cmp));
         for w in &written {

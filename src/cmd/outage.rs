@@ -84,9 +84,9 @@ pub fn run(args: OutageArgs) -> anyhow::Result<()> {
     let study = outage(&model, &house, &weather, &opts).map_err(super::size::study_error)?;
     spinner.finish_and_clear();
     let out = dwell_report::OutputDir::create(&args.out)?;
-    let mut written = dwell_report::write_outage(&out, &study)?;
-    let zones: Vec<String> = house.zones.iter().map(|z| z.id.clone()).collect();
-    written.extend(dwell_report::write_outage_report(&out, &study, &house, &zones)?);
+    let mut written = dwell_report::write_outage(&out, &study, &house)?;
+    // Drawn from the files just written, as `dwell chart` redraws them.
+    written.extend(super::chart::draw_study(&out, args.quiet)?);
     if !args.quiet {
         print!("{}", table(&study));
         for w in &written {

@@ -79,9 +79,9 @@ pub fn run(args: SetbackArgs) -> anyhow::Result<()> {
     let study = setback(&model, &house, &weather, &opts).map_err(super::size::study_error)?;
     spinner.finish_and_clear();
     let out = dwell_report::OutputDir::create(&args.out)?;
-    let zones: Vec<String> = house.zones.iter().map(|z| z.id.clone()).collect();
-    let mut written = dwell_report::write_setback(&out, &study, &zones)?;
-    written.extend(dwell_report::write_setback_report(&out, &study, &house, &zones)?);
+    let mut written = dwell_report::write_setback(&out, &study, &house)?;
+    // Drawn from the files just written, as `dwell chart` redraws them.
+    written.extend(super::chart::draw_study(&out, args.quiet)?);
     if !args.quiet {
         print!("{}", table(&study));
         for w in &written {

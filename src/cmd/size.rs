@@ -73,8 +73,9 @@ pub fn run(args: SizeArgs) -> anyhow::Result<()> {
     let sizing = size(&model, &house, year.as_ref(), &opts).map_err(super::size::study_error)?;
     spinner.finish_and_clear();
     let out = dwell_report::OutputDir::create(&args.out)?;
-    let mut written = dwell_report::write_sizing(&out, &sizing)?;
-    written.extend(dwell_report::write_sizing_report(&out, &sizing, &house)?);
+    let mut written = dwell_report::write_sizing(&out, &sizing, &house)?;
+    // Drawn from the files just written, as `dwell chart` redraws them.
+    written.extend(super::chart::draw_study(&out, args.quiet)?);
     if !args.quiet {
         print!("{}", table(&sizing));
         for w in &written {

@@ -3,7 +3,7 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::util::{dwell, dwell_in, root, stderr};
+use crate::util::{dwell, dwell_in, root, stderr, stdout};
 
 /// The chart files `simulate` writes under `charts/`.
 const CHARTS: [&str; 5] = ["temperatures", "heating", "monthly", "duration", "balance"];
@@ -405,7 +405,7 @@ fn chart_on_a_folder_without_a_run_is_bad_input() {
     assert_eq!(o.status.code(), Some(2));
     assert_eq!(
         stderr(&o),
-        "error: empty holds no hourly.csv and summary.json: give the --out folder of a finished `dwell simulate` run\n"
+        "error: empty holds no finished run (no run.json, nor hourly.csv with summary.json): give the --out folder of a finished `dwell simulate`, `size`, `setback`, `outage` or `compare` run\n"
     );
     assert_eq!(
         std::fs::read_dir(tmp.path().join("empty")).unwrap().count(),
@@ -574,4 +574,363 @@ fn study_commands_write_their_charts_and_reports() {
         assert_eq!(figs, charts.len(), "{dir}");
         assert!(html.contains(dwell_studies::CAUTION), "{dir}");
     }
+}
+
+/// Every file under `charts/` and `report.html` of a folder, by name.
+fn drawn_files(dir: &Path) -> std::collections::BTreeMap<String, Vec<u8>> {
+    let mut m = std::collections::BTreeMap::new();
+    for e in std::fs::read_dir(dir.join("charts")).unwrap() {
+        let p = e.unwrap().path();
+        m.insert(
+            format!("charts/{}", p.file_name().unwrap().to_string_lossy()),
+            std::fs::read(&p).unwrap(),
+        );
+    }
+    m.insert(
+        "report.html".into(),
+        std::fs::read(dir.join("report.html")).unwrap(),
+    );
+    m
+}
+
+/// Deletes what `dwell chart` redraws.
+fn delete_drawn(dir: &Path) {
+    std::fs::remove_dir_all(dir.join("charts")).unwrap();
+    std::fs::remove_file(dir.join("report.html")).unwrap();
+}
+
+/// Runs `dwell` in the repository root and asserts exit 2 and that nothing was redrawn in `dir`.
+fn refused(dir: &Path, args: &[&str]) -> String {
+    let o = dwell(args);
+    assert_eq!(o.status.code(), Some(2), "{args:?}: {}", stderr(&o));
+    assert!(
+        !dir.join("charts").exists() && !dir.join("report.html").exists(),
+        "{args:?} drew something"
+    );
+    stderr(&o)
+}
+
+/// Whether two JSON values are equal, numbers to within one unit in the last place: serde_json's
+/// default float parser (without its `float_roundtrip` feature) may round the last bit
+/// differently from the shortest representation it writes (serde_json 1.0 documentation).
+fn same_json(a: &serde_json::Value, b: &serde_json::Value) -> bool {
+    use serde_json::Value;
+    match (a, b) {
+        (Value::Number(x), Value::Number(y)) => {
+            let (x, y) = (x.as_f64().unwrap(), y.as_f64().unwrap());
+            x == y || (x - y).abs() <= f64::EPSILON * x.abs().max(y.abs())
+        }
+        (Value::Array(x), Value::Array(y)) => {
+            x.len() == y.len() && x.iter().zip(y).all(|(x, y)| same_json(x, y))
+        }
+        (Value::Object(x), Value::Object(y)) => {
+            x.len() == y.len()
+                && x.iter()
+                    .zip(y)
+                    .all(|((k, v), (l, w))| k == l && same_json(v, w))
+        }
+        _ => a == b,
+    }
+}
+
+#[test]
+fn chart_redraws_every_study_folder_byte_for_byte() {
+    let tmp = tempfile::tempdir().unwrap();
+    let model = "zones-examples/brickworth-house.json";
+    // An invented variant for compare: tighter air (a merge patch replacing the airflows).
+    let mut m: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(root().join(model)).unwrap()).unwrap();
+    m["airflows"][0]["air_changes_per_h"] = 0.5.into();
+    let patch = tmp.path().join("tighter.json");
+    std::fs::write(
+        &patch,
+        serde_json::json!({ "airflows": m["airflows"] }).to_string(),
+    )
+    .unwrap();
+    let patch = format!("tighter={}", patch.display());
+    let out = |n: &str| tmp.path().join(n).to_str().unwrap().to_string();
+    let (size_dir, setback_dir, outage_dir, compare_dir, cabin_dir) = (
+        out("size"),
+        out("setback"),
+        out("outage"),
+        out("compare"),
+        out("cabin-size"),
+    );
+    // A year of weather only for the cabin's load duration curve (the smallest example).
+    let runs: Vec<(&str, Vec<&str>, Vec<&str>)> = vec![
+        (
+            "size",
+            vec![
+                "size",
+                model,
+                "--design-temp",
+                "-3",
+                "--days",
+                "3",
+                "--out",
+                &size_dir,
+            ],
+            vec!["sizing", "capacity-curve"],
+        ),
+        (
+            "size",
+            vec![
+                "size",
+                "zones-examples/fernhollow-cabin.json",
+                "--design-temp",
+                "-5",
+                "--days",
+                "3",
+                "--weather",
+                "weather-samples/kolvask.csv",
+                "--out",
+                &cabin_dir,
+            ],
+            vec!["sizing", "capacity-curve", "load-duration"],
+        ),
+        (
+            "setback",
+            vec![
+                "setback",
+                model,
+                "--from",
+                "2025-01-13",
+                "--to",
+                "2025-01-15",
+                "--out",
+                &setback_dir,
+            ],
+            vec!["setback"],
+        ),
+        // Kolvask's local standard time is UTC+3: the chart's axis names the offset from run.json.
+        (
+            "outage",
+            vec![
+                "outage",
+                model,
+                "--weather",
+                "weather-samples/kolvask.csv",
+                "--start",
+                "2025-01-14T18:00",
+                "--hours",
+                "12",
+                "--after",
+                "6",
+                "--out",
+                &outage_dir,
+            ],
+            vec!["outage"],
+        ),
+        (
+            "compare",
+            vec![
+                "compare",
+                model,
+                "--variant",
+                &patch,
+                "--from",
+                "2025-01-01",
+                "--to",
+                "2025-01-04",
+                "--out",
+                &compare_dir,
+            ],
+            vec!["compare"],
+        ),
+    ];
+    for (command, args, charts) in &runs {
+        let dir = Path::new(args[args.len() - 1]);
+        let mut a = args.clone();
+        a.push("--quiet");
+        let o = dwell(&a);
+        assert!(o.status.success(), "{command}: {}", stderr(&o));
+        let marker: serde_json::Value =
+            serde_json::from_str(&std::fs::read_to_string(dir.join("run.json")).unwrap()).unwrap();
+        assert_eq!(marker["command"], *command);
+        assert_eq!(marker["files_version"], 1);
+        assert!(dir.join("house.json").is_file());
+        let before = drawn_files(dir);
+        let names: Vec<String> = charts
+            .iter()
+            .flat_map(|c| [format!("charts/{c}.png"), format!("charts/{c}.svg")])
+            .chain(["report.html".to_string()])
+            .collect();
+        let mut listed: Vec<String> = before.keys().cloned().collect();
+        listed.sort();
+        let mut want = names.clone();
+        want.sort();
+        assert_eq!(listed, want, "{command}");
+        delete_drawn(dir);
+        let o = dwell(&["chart", args[args.len() - 1]]);
+        assert!(o.status.success(), "{command}: {}", stderr(&o));
+        assert!(stdout(&o).contains("report.html"), "{}", stdout(&o));
+        let after = drawn_files(dir);
+        // Byte for byte: nothing in the charts or the report depends on the time of drawing
+        // (the report's footer names only the dwell version).
+        for (name, bytes) in &before {
+            assert!(
+                after[name] == *bytes,
+                "{command}: {name} differs after `dwell chart`"
+            );
+        }
+        assert_eq!(after.len(), before.len(), "{command}");
+    }
+
+    let svg = std::fs::read_to_string(Path::new(&outage_dir).join("charts/outage.svg")).unwrap();
+    assert!(
+        svg.contains("local standard time (UTC+03:00)"),
+        "the offset is read back from run.json"
+    );
+
+    // The data handed to the setback chart equals setback_path.csv column by column,
+    // setpoints included.
+    let sdir = Path::new(&setback_dir);
+    let files =
+        dwell_report::StudyFiles::read(sdir, dwell_report::RunMarker::read(sdir).unwrap().unwrap())
+            .unwrap();
+    let dwell_report::Study::Setback { study, zones } = &files.study else {
+        panic!("setback")
+    };
+    let dwell_charts::Chart::Line(chart) =
+        dwell_report::charts_studies::setback_chart(study, zones)
+            .unwrap()
+            .chart
+    else {
+        panic!("line chart")
+    };
+    let (header, cols) = csv_columns(&sdir.join("setback_path.csv"));
+    let col = |name: &str| -> Vec<f64> {
+        cols[header.iter().position(|h| h == name).unwrap()]
+            .iter()
+            .map(|s| num(s))
+            .collect()
+    };
+    let with_setpoints: Vec<&str> = header
+        .iter()
+        .filter_map(|h| h.strip_suffix("_setpoint_c"))
+        .collect();
+    assert!(!with_setpoints.is_empty(), "{header:?}");
+    for s in &chart.series {
+        let y = match s.label.as_str() {
+            "outdoor air" => col("outdoor_c"),
+            l if l.ends_with(" air") => col(&format!("{}_c", l.trim_end_matches(" air"))),
+            l => col(&format!("{}_setpoint_c", l.trim_end_matches(" setpoint"))),
+        };
+        // 13 Jan 00:00 … 16 Jan 00:00 in 10-min steps: 72 h → 433 stamps, all shown (≤ 7 days).
+        assert_eq!(s.y.len(), 433, "{}", s.label);
+        assert!(same(&s.y, &y[..s.y.len()]), "{}", s.label);
+    }
+    // Air per zone, a setpoint per zone with a thermostat, outdoor air.
+    assert_eq!(chart.series.len(), zones.len() + with_setpoints.len() + 1);
+
+    // Each study's JSON reads back whole: written again, it is the same text.
+    for (dir, file) in [
+        (&size_dir, "sizing.json"),
+        (&cabin_dir, "sizing.json"),
+        (&setback_dir, "setback.json"),
+        (&outage_dir, "outage.json"),
+        (&compare_dir, "compare.json"),
+    ] {
+        let d = Path::new(dir);
+        let f =
+            dwell_report::StudyFiles::read(d, dwell_report::RunMarker::read(d).unwrap().unwrap())
+                .unwrap();
+        let again = match &f.study {
+            dwell_report::Study::Size(s) => serde_json::to_string_pretty(s),
+            dwell_report::Study::Setback { study, .. } => serde_json::to_string_pretty(study),
+            dwell_report::Study::Outage { study, .. } => serde_json::to_string_pretty(study),
+            dwell_report::Study::Compare(c) => serde_json::to_string_pretty(c),
+        }
+        .unwrap();
+        let written = std::fs::read_to_string(d.join(file)).unwrap();
+        let first = again.lines().zip(written.lines()).find(|(a, b)| a != b);
+        assert!(
+            again.lines().count() == written.lines().count(),
+            "{dir}/{file}"
+        );
+        assert!(
+            same_json(
+                &serde_json::from_str(&again).unwrap(),
+                &serde_json::from_str(&written).unwrap()
+            ),
+            "{dir}/{file} does not read back whole: {first:?}"
+        );
+    }
+
+    // Bad input: every case exits 2, names the file and draws nothing.
+    delete_drawn(sdir);
+    std::fs::rename(sdir.join("setback_path.csv"), sdir.join("kept.csv")).unwrap();
+    let e = refused(sdir, &["chart", &setback_dir]);
+    assert!(
+        e.contains("cannot read ")
+            && e.contains("setback_path.csv")
+            && e.ends_with("run `dwell setback` again with --out on this folder to rewrite it\n"),
+        "{e}"
+    );
+    std::fs::rename(sdir.join("kept.csv"), sdir.join("setback_path.csv")).unwrap();
+    std::fs::write(sdir.join("run.json"), "{\"command\": \"setback\"").unwrap();
+    let e = refused(sdir, &["chart", &setback_dir]);
+    assert!(
+        e.starts_with(&format!("error: {}: ", sdir.join("run.json").display()))
+            && e.contains("EOF"),
+        "{e}"
+    );
+    let zdir = Path::new(&size_dir);
+    delete_drawn(zdir);
+    std::fs::write(zdir.join("sizing.json"), "{\"model\": 3}").unwrap();
+    let e = refused(zdir, &["chart", &size_dir]);
+    assert!(
+        e.contains(&format!(
+            "{}: invalid type: integer `3`",
+            zdir.join("sizing.json").display()
+        )),
+        "{e}"
+    );
+    assert!(e.contains("line 1 column 11"), "{e}");
+    // Options for a simulate folder only.
+    let odir = Path::new(&outage_dir);
+    delete_drawn(odir);
+    let e = refused(odir, &["chart", &outage_dir, "--from", "2025-01-14"]);
+    assert_eq!(
+        e,
+        format!("error: --from/--to choose the days of the temperature chart of a `dwell simulate` folder; {outage_dir} holds a `dwell outage` run, whose charts show the period it studied: drop --from/--to, or run `dwell outage` again with another --start\n")
+    );
+    // A folder of an older dwell, without run.json.
+    std::fs::remove_file(odir.join("run.json")).unwrap();
+    let e = refused(odir, &["chart", &outage_dir]);
+    assert_eq!(
+        e,
+        format!("error: {outage_dir} holds a `dwell outage` run (outage.json) from an older dwell, without the run.json and house.json its charts are drawn from; run `dwell outage` again with --out on this folder, which also draws the charts\n")
+    );
+}
+
+#[test]
+fn chart_refuses_a_missing_folder_and_an_unknown_command() {
+    let tmp = tempfile::tempdir().unwrap();
+    let o = dwell_in(tmp.path(), &["chart", "nowhere"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert_eq!(
+        stderr(&o),
+        "error: nowhere is not a folder: give the --out folder of a finished `dwell simulate`, `size`, `setback`, `outage` or `compare` run\n"
+    );
+    assert!(
+        !tmp.path().join("nowhere").exists(),
+        "the folder is not created"
+    );
+    let d = tmp.path().join("odd");
+    std::fs::create_dir(&d).unwrap();
+    std::fs::write(
+        d.join("run.json"),
+        r#"{"command": "paint", "files_version": 1, "dwell_version": "0"}"#,
+    )
+    .unwrap();
+    let o = dwell_in(tmp.path(), &["chart", "odd"]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = stderr(&o);
+    assert!(
+        e.starts_with("error: odd/run.json: unknown variant `paint`"),
+        "{e}"
+    );
+    assert!(e.ends_with("run.json records which command wrote the folder: run that command again with --out on this folder to rewrite it\n"), "{e}");
+    assert_eq!(std::fs::read_dir(&d).unwrap().count(), 1, "nothing written");
 }

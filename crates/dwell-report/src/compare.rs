@@ -1,9 +1,13 @@
-//! Outputs of `dwell compare`: `compare.json` and `compare.csv`, base first.
+//! Outputs of `dwell compare`: `compare.json` and `compare.csv`, base first, and for the
+//! charts `house.json` (of the base) and `run.json` ([`crate::study_files`]).
 
+use dwell_model::House;
 use dwell_studies::compare::Comparison;
 
 use crate::csvtext::{csv_text, json, num};
 use crate::outdir::{OutputDir, ReportError};
+use crate::run_marker::{RunCommand, RunMarker, RUN_FILE};
+use crate::study_files::{house_json, HOUSE_FILE};
 
 /// `compare.csv`.
 pub fn compare_csv(c: &Comparison) -> Result<String, ReportError> {
@@ -42,12 +46,17 @@ pub fn compare_csv(c: &Comparison) -> Result<String, ReportError> {
     csv_text(&header, rows)
 }
 
-/// Writes the outputs of a comparison.
-pub fn write_compare(out: &OutputDir, c: &Comparison) -> Result<Vec<std::path::PathBuf>, ReportError> {
+/// Writes the outputs of a comparison whose base is `base`, `run.json` last; everything is
+/// formatted before anything is written.
+pub fn write_compare(out: &OutputDir, c: &Comparison, base: &House) -> Result<Vec<std::path::PathBuf>, ReportError> {
     let j = json(c, "compare.json")?;
     let s = compare_csv(c)?;
+    let sheet = house_json(base)?;
+    let marker = RunMarker::new(RunCommand::Compare).to_json()?;
     Ok(vec![
         out.write("compare.json", j.as_bytes())?,
         out.write("compare.csv", s.as_bytes())?,
+        out.write(HOUSE_FILE, sheet.as_bytes())?,
+        out.write(RUN_FILE, marker.as_bytes())?,
     ])
 }

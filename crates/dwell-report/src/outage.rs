@@ -1,9 +1,13 @@
-//! Outputs of `dwell outage`: `outage.json` and `outage_path.csv` (every step).
+//! Outputs of `dwell outage`: `outage.json`, `outage_path.csv` (every step), and for the
+//! charts `house.json` and `run.json` ([`crate::study_files`]).
 
+use dwell_model::House;
 use dwell_studies::outage::OutageStudy;
 
 use crate::csvtext::{csv_text, json, num};
 use crate::outdir::{OutputDir, ReportError};
+use crate::run_marker::{RunCommand, RunMarker, RUN_FILE};
+use crate::study_files::{house_json, HOUSE_FILE};
 
 /// `outage_path.csv`: local time, outdoor, heating on or off, then per zone air and heat.
 pub fn outage_path_csv(s: &OutageStudy) -> Result<String, ReportError> {
@@ -25,12 +29,21 @@ pub fn outage_path_csv(s: &OutageStudy) -> Result<String, ReportError> {
     csv_text(&h, rows)
 }
 
-/// Writes the outputs of an outage study.
-pub fn write_outage(out: &OutputDir, s: &OutageStudy) -> Result<Vec<std::path::PathBuf>, ReportError> {
+/// Writes the outputs of an outage study of `house`, `run.json` last; everything is formatted
+/// before anything is written.
+pub fn write_outage(out: &OutputDir, s: &OutageStudy, house: &House) -> Result<Vec<std::path::PathBuf>, ReportError> {
     let j = json(s, "outage.json")?;
     let p = outage_path_csv(s)?;
+    let sheet = house_json(house)?;
+    let mut marker = RunMarker::new(RunCommand::Outage);
+    if let Some(t) = s.trace.times.first() {
+        marker = marker.with_offset(*t.offset());
+    }
+    let marker = marker.to_json()?;
     Ok(vec![
         out.write("outage.json", j.as_bytes())?,
         out.write("outage_path.csv", p.as_bytes())?,
+        out.write(HOUSE_FILE, sheet.as_bytes())?,
+        out.write(RUN_FILE, marker.as_bytes())?,
     ])
 }

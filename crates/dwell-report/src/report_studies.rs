@@ -1,8 +1,8 @@
-//! Charts and `report.html` for the studies `setback`, `outage`, `size` and `compare`.
+//! Charts and `report.html` for the studies `setback`, `outage`, `size` and `compare`, drawn
+//! from the files the study wrote ([`StudyFiles`]) so `dwell chart DIR` redraws them exactly.
 
 use std::path::PathBuf;
 
-use dwell_model::House;
 use dwell_studies::compare::Comparison;
 use dwell_studies::outage::OutageStudy;
 use dwell_studies::setback::SetbackStudy;
@@ -13,13 +13,11 @@ use crate::charts_studies::{compare_charts, outage_chart, setback_chart, sizing_
 use crate::html::{esc, render, table, Report, Section};
 use crate::outdir::{OutputDir, ReportError};
 use crate::report_simulate::{figures, house_section, method_text, write_charts};
+use crate::study_files::{Study, StudyFiles};
+use serde_json::Value;
 
 fn o(v: Option<f64>, d: usize) -> String {
     v.map(|x| format!("{x:.d$}")).unwrap_or_else(|| "–".into())
-}
-
-fn sheet(house: &House) -> Option<serde_json::Value> {
-    serde_json::to_value(dwell_model::summary::check_summary(house)).ok()
 }
 
 fn cautions(warnings: &[String], cautions: &[String]) -> String {
@@ -50,12 +48,11 @@ struct Parts {
 
 fn write(
     out: &OutputDir,
-    house: &House,
+    house: &Value,
     charts: Vec<NamedChart>,
     p: Parts,
 ) -> Result<Vec<PathBuf>, ReportError> {
     let (drawn, mut files) = write_charts(out, charts)?;
-    let sheet = sheet(house);
     let report = Report {
         title: p.title,
         subtitle: p.subtitle,
@@ -68,7 +65,7 @@ fn write(
             Section {
                 id: "house".into(),
                 heading: "The house".into(),
-                body: house_section(sheet.as_ref()),
+                body: house_section(Some(house)),
             },
             Section {
                 id: "results".into(),
@@ -101,11 +98,22 @@ fn write(
     Ok(files)
 }
 
-/// Charts and report of `dwell setback`; `zones` are the house's zone ids in order.
+/// Charts and report of a study read back from its folder.
+pub fn write_study_report(out: &OutputDir, f: &StudyFiles) -> Result<Vec<PathBuf>, ReportError> {
+    match &f.study {
+        Study::Size(s) => write_sizing_report(out, s, &f.house),
+        Study::Setback { study, zones } => write_setback_report(out, study, &f.house, zones),
+        Study::Outage { study, zones } => write_outage_report(out, study, &f.house, zones),
+        Study::Compare(c) => write_compare_report(out, c, &f.house),
+    }
+}
+
+/// Charts and report of `dwell setback`; `house` is the check sheet (`house.json`), `zones`
+/// the house's zone ids in order.
 pub fn write_setback_report(
     out: &OutputDir,
     s: &SetbackStudy,
-    house: &House,
+    house: &Value,
     zones: &[String],
 ) -> Result<Vec<PathBuf>, ReportError> {
     let summary = format!(
@@ -198,11 +206,11 @@ pub fn write_setback_report(
     )
 }
 
-/// Charts and report of `dwell outage`.
+/// Charts and report of `dwell outage`; `house` is the check sheet (`house.json`).
 pub fn write_outage_report(
     out: &OutputDir,
     s: &OutageStudy,
-    house: &House,
+    house: &Value,
     zones: &[String],
 ) -> Result<Vec<PathBuf>, ReportError> {
     let mut summary = format!(
@@ -271,11 +279,11 @@ pub fn write_outage_report(
     )
 }
 
-/// Charts and report of `dwell size`.
+/// Charts and report of `dwell size`; `house` is the check sheet (`house.json`).
 pub fn write_sizing_report(
     out: &OutputDir,
     s: &Sizing,
-    house: &House,
+    house: &Value,
 ) -> Result<Vec<PathBuf>, ReportError> {
     let summary = format!(
         "<p class=\"lead\">For {} °C outside, the house needs about <strong>{:.0} W</strong> of heating in total (recommended, with a {:.0} % margin), against a steady heat loss of {:.0} W and {:.0} W installed now.</p>\n",
@@ -335,11 +343,11 @@ pub fn write_sizing_report(
     )
 }
 
-/// Charts and report of `dwell compare`; `house` is the base variant's.
+/// Charts and report of `dwell compare`; `house` is the check sheet of the base variant.
 pub fn write_compare_report(
     out: &OutputDir,
     c: &Comparison,
-    house: &House,
+    house: &Value,
 ) -> Result<Vec<PathBuf>, ReportError> {
     let best = c
         .rows

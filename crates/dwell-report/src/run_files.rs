@@ -1,5 +1,6 @@
 //! Reading back the files of a finished `simulate` run, so charts and the report are drawn
-//! from exactly what was written (and `dwell chart DIR` can redraw them later).
+//! from exactly what was written (and `dwell chart DIR` can redraw them later). The studies'
+//! folders are read by [`crate::study_files`].
 
 use std::path::Path;
 

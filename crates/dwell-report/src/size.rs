@@ -1,10 +1,14 @@
-//! Outputs of `dwell size`: `sizing.json`, `sizing.csv` and, with a weather year,
-//! `load_duration.csv`.
+//! Outputs of `dwell size`: `sizing.json`, `sizing.csv`, `capacity_curve.csv`, with a weather
+//! year `load_duration.csv`, and for the charts `house.json` and `run.json`
+//! ([`crate::study_files`]).
 
+use dwell_model::House;
 use dwell_studies::size::Sizing;
 
 use crate::csvtext::{csv_text, json, num};
 use crate::outdir::{OutputDir, ReportError};
+use crate::run_marker::{RunCommand, RunMarker, RUN_FILE};
+use crate::study_files::{house_json, HOUSE_FILE};
 
 /// `sizing.csv`: one row per zone and a `total` row; watts, breakdown by group.
 pub fn sizing_csv(s: &Sizing) -> Result<String, ReportError> {
@@ -89,12 +93,15 @@ pub fn capacity_curve_csv(s: &Sizing) -> Result<Option<String>, ReportError> {
     .map(Some)
 }
 
-/// Writes the outputs of a sizing; everything is formatted before anything is written.
-pub fn write_sizing(out: &OutputDir, s: &Sizing) -> Result<Vec<std::path::PathBuf>, ReportError> {
+/// Writes the outputs of a sizing of `house`, `run.json` last; everything is formatted before
+/// anything is written.
+pub fn write_sizing(out: &OutputDir, s: &Sizing, house: &House) -> Result<Vec<std::path::PathBuf>, ReportError> {
     let j = json(s, "sizing.json")?;
     let c = sizing_csv(s)?;
     let l = load_duration_csv(s)?;
     let k = capacity_curve_csv(s)?;
+    let sheet = house_json(house)?;
+    let marker = RunMarker::new(RunCommand::Size).to_json()?;
     let mut w = vec![out.write("sizing.json", j.as_bytes())?, out.write("sizing.csv", c.as_bytes())?];
     if let Some(l) = l {
         w.push(out.write("load_duration.csv", l.as_bytes())?);
@@ -102,5 +109,7 @@ pub fn write_sizing(out: &OutputDir, s: &Sizing) -> Result<Vec<std::path::PathBu
     if let Some(k) = k {
         w.push(out.write("capacity_curve.csv", k.as_bytes())?);
     }
+    w.push(out.write(HOUSE_FILE, sheet.as_bytes())?);
+    w.push(out.write(RUN_FILE, marker.as_bytes())?);
     Ok(w)
 }

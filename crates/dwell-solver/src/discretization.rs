@@ -5,7 +5,8 @@ use std::sync::Arc;
 use nalgebra::{DMatrix, DVector};
 
 use crate::block::block_parts;
-use crate::modal::{clamp_rates, modal_parts, symmetric_rate_matrix};
+use crate::eigen::{symmetric_eigenvalues, Backend};
+use crate::modal::{clamp_rates, modal_parts, symmetric_rate_matrix, ModalParts};
 use crate::{InputKind, RcSystem, SolverError};
 
 /// Smallest allowed step (s).
@@ -128,7 +129,7 @@ pub struct Discretization {
 }
 
 /// Checks `step_s` is finite and within [`MIN_STEP_S`, `MAX_STEP_S`].
-fn validate_step(step_s: f64) -> Result<(), SolverError> {
+pub(crate) fn validate_step(step_s: f64) -> Result<(), SolverError> {
     if !step_s.is_finite() || !(MIN_STEP_S..=MAX_STEP_S).contains(&step_s) {
         return Err(SolverError::Step(
             step_s,
@@ -171,6 +172,25 @@ impl Discretization {
                     spectrum: Spectrum::Rates(p.lambda),
                 })
             }
+        }
+    }
+
+    /// A modal discretisation whose state is the modal coordinates themselves (no map back
+    /// to nodes): used for truncated models, whose readouts are pre-multiplied by the kept
+    /// columns of the basis (`truncation.rs`).
+    pub(crate) fn modal_coordinates(kinds: Vec<InputKind>, step_s: f64, p: ModalParts) -> Self {
+        Discretization {
+            route: Route::Modal,
+            step_s,
+            kinds,
+            transition: Transition::Diagonal(p.decay),
+            mean_transition: Transition::Diagonal(p.mean_decay),
+            gamma0: p.gamma0,
+            gamma1: p.gamma1,
+            mean_gamma0: p.mean_gamma0,
+            mean_gamma1: p.mean_gamma1,
+            to_nodes: None,
+            spectrum: Spectrum::Rates(p.lambda),
         }
     }
 
@@ -299,7 +319,10 @@ impl Discretization {
         let n = self.states();
         let rates = match &self.spectrum {
             Spectrum::Rates(l) => l.clone(),
-            Spectrum::Symmetric(s) => clamp_rates(s.symmetric_eigenvalues().iter().copied(), n),
+            Spectrum::Symmetric(s) => clamp_rates(
+                symmetric_eigenvalues(s, Backend::for_states(n)).into_iter(),
+                n,
+            ),
             Spectrum::General(a) => clamp_rates(a.complex_eigenvalues().iter().map(|z| -z.re), n),
         };
         let mut tau: Vec<f64> = rates

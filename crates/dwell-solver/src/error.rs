@@ -16,6 +16,9 @@ pub enum SolverError {
     /// A steady state was asked of a system with no path to a boundary.
     #[error("no steady state: {0}")]
     Singular(String),
+    /// An option out of its allowed range (for example a truncation threshold).
+    #[error("invalid option: {0}")]
+    Option(String),
     /// Thermostat channels or parameters that cannot be used.
     #[error("invalid control: {0}")]
     Control(String),

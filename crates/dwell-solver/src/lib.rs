@@ -18,6 +18,8 @@
 //! - [`ControlChannel`] and [`Stepper::step_thermostat`] add capacity-limited thermostats
 //!   solved jointly for all zones; [`OnOffThermostat`] switches with a dead band.
 //! - [`steady_state`] solves `K x = U u`.
+//! - [`TruncatedModal`] drops the modes faster than a [`Truncation`] threshold and keeps
+//!   their static response (exact steady state, stated error bound).
 //!
 //! The solver knows nothing about walls, files or weather: only matrices.
 //!
@@ -46,6 +48,7 @@
 mod block;
 mod control;
 mod discretization;
+mod eigen;
 mod error;
 mod expm;
 mod lcp;
@@ -57,6 +60,7 @@ mod readout;
 mod steady;
 mod stepper;
 mod system;
+mod truncation;
 mod work;
 
 pub use control::ControlChannel;
@@ -68,3 +72,4 @@ pub use readout::Readout;
 pub use steady::steady_state;
 pub use stepper::Stepper;
 pub use system::{InputKind, RcSystem};
+pub use truncation::{ErrorBound, TruncatedModal, Truncation};

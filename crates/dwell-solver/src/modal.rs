@@ -16,15 +16,17 @@
 //! the symmetric eigensolver's absolute error is of order `ε‖S‖`, and at `λ = 0` the factors are
 //! exact (`1, h, h/2, h/6`), so a network without a boundary path still integrates.
 //!
-//! Cost: one symmetric eigen-decomposition `O(n³)` (nalgebra `SymmetricEigen`, implicit QR).
+//! Cost: one symmetric eigen-decomposition `O(n³)` (`eigen.rs`: nalgebra's implicit QR for
+//! small networks, faer's blocked divide and conquer for large ones).
 //!
 //! ## Reference
 //!
 //! G. H. Golub and C. F. Van Loan, *Matrix Computations*, 4th ed., §8.1 (symmetric eigenvalue
 //! perturbation, Weyl) and §9.3 (functions of symmetric matrices via the spectral decomposition).
 
-use nalgebra::{DMatrix, DVector, SymmetricEigen};
+use nalgebra::{DMatrix, DVector};
 
+use crate::eigen::{symmetric_eigen, Backend};
 use crate::{phi::phi0123, InputKind, RcSystem, SolverError};
 
 /// The decoupled step in modal coordinates.
@@ -62,15 +64,24 @@ pub(crate) fn clamp_rates(raw: impl Iterator<Item = f64>, n: usize) -> Vec<f64> 
         .collect()
 }
 
-pub(crate) fn modal_parts(sys: &RcSystem, h: f64) -> Result<ModalParts, SolverError> {
+/// The modes of `S`: rates, the basis `T = C^{-1/2} V` and the input projections
+/// `B̃ = Vᵀ C^{-1/2} U`.
+pub(crate) struct Modes {
+    /// Decay rates `λ` (1/s), ≥ 0, clamped as described in the module docs.
+    pub lambda: Vec<f64>,
+    /// `T = C^{-1/2} V`, `n × n` (node temperature per unit modal coordinate).
+    pub to_nodes: DMatrix<f64>,
+    /// `B̃ = Vᵀ C^{-1/2} U`, `n × m` (modal rate per unit input).
+    pub bt: DMatrix<f64>,
+}
+
+/// Decomposes `S` (one `O(n³)` eigen-decomposition, `eigen.rs`).
+pub(crate) fn modes(sys: &RcSystem) -> Result<Modes, SolverError> {
     let n = sys.states();
     let m = sys.inputs();
     let s = symmetric_rate_matrix(sys);
-    let eig = SymmetricEigen::try_new(s, f64::EPSILON, 0).ok_or_else(|| {
-        SolverError::Numerical("the symmetric eigen-decomposition did not converge".into())
-    })?;
-    let lambda = clamp_rates(eig.eigenvalues.iter().copied(), n);
-    let v = eig.eigenvectors;
+    let (raw, v) = symmetric_eigen(s, Backend::for_states(n))?;
+    let lambda = clamp_rates(raw.into_iter(), n);
     let sqrt_c: Vec<f64> = sys.capacitance.iter().map(|c| c.sqrt()).collect();
     // B̃ = Vᵀ C^{-1/2} U
     let scaled_u = DMatrix::from_fn(n, m, |i, j| sys.input[(i, j)] / sqrt_c[i]);
@@ -82,17 +93,34 @@ pub(crate) fn modal_parts(sys: &RcSystem, h: f64) -> Result<ModalParts, SolverEr
             *t /= sc;
         }
     }
+    Ok(Modes {
+        lambda,
+        to_nodes,
+        bt,
+    })
+}
+
+/// The per-mode step coefficients for rates `lambda` (1/s) and input projections `bt`
+/// (one row per mode).
+pub(crate) fn step_coefficients(
+    lambda: Vec<f64>,
+    to_nodes: DMatrix<f64>,
+    bt: &DMatrix<f64>,
+    kinds: &[InputKind],
+    h: f64,
+) -> ModalParts {
+    let (r, m) = (lambda.len(), kinds.len());
     let mut parts = ModalParts {
         lambda,
         to_nodes,
-        decay: DVector::zeros(n),
-        gamma0: DMatrix::zeros(n, m),
-        gamma1: DMatrix::zeros(n, m),
-        mean_decay: DVector::zeros(n),
-        mean_gamma0: DMatrix::zeros(n, m),
-        mean_gamma1: DMatrix::zeros(n, m),
+        decay: DVector::zeros(r),
+        gamma0: DMatrix::zeros(r, m),
+        gamma1: DMatrix::zeros(r, m),
+        mean_decay: DVector::zeros(r),
+        mean_gamma0: DMatrix::zeros(r, m),
+        mean_gamma1: DMatrix::zeros(r, m),
     };
-    for i in 0..n {
+    for i in 0..r {
         let [p0, p1, p2, p3] = phi0123(parts.lambda[i] * h);
         parts.decay[i] = p0;
         parts.mean_decay[i] = p1;
@@ -100,11 +128,22 @@ pub(crate) fn modal_parts(sys: &RcSystem, h: f64) -> Result<ModalParts, SolverEr
             let b = bt[(i, j)];
             parts.gamma0[(i, j)] = h * p1 * b;
             parts.mean_gamma0[(i, j)] = h * p2 * b;
-            if sys.input_kinds[j] == InputKind::Temperature {
+            if kinds[j] == InputKind::Temperature {
                 parts.gamma1[(i, j)] = h * p2 * b;
                 parts.mean_gamma1[(i, j)] = h * p3 * b;
             }
         }
     }
-    Ok(parts)
+    parts
+}
+
+pub(crate) fn modal_parts(sys: &RcSystem, h: f64) -> Result<ModalParts, SolverError> {
+    let md = modes(sys)?;
+    Ok(step_coefficients(
+        md.lambda,
+        md.to_nodes,
+        &md.bt,
+        &sys.input_kinds,
+        h,
+    ))
 }

@@ -14,7 +14,7 @@
 use dwell_model::{House, ModelError, ModelFile};
 use dwell_weather::WeatherSeries;
 use rayon::prelude::*;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use serde_json::Value;
 
 use crate::simulate::{simulate, SimOptions, StudyError};
@@ -62,7 +62,7 @@ pub fn grid<T: Clone>(lists: &[Vec<T>]) -> Vec<Vec<T>> {
 }
 
 /// One row of the comparison.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct VariantRow {
     /// Variant name.
     pub variant: String,
@@ -93,7 +93,7 @@ pub struct VariantRow {
 }
 
 /// The comparison.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct Comparison {
     /// Base model name.
     pub model: String,
@@ -154,17 +154,21 @@ pub fn compare_with_progress(
             if let Some(p) = price_per_kwh {
                 m.heaters.iter_mut().for_each(|h| h.price_per_kwh = Some(p));
             }
-            let r = simulate(&m, &v.house, weather, opts).map_err(|e| VariantError {
-                variant: v.name.clone(),
-                source: e,
-            });
+            // Keep only the summary: the variant's hourly trajectories are dropped here,
+            // on the worker thread, so memory holds one trajectory per thread at most.
+            let r = simulate(&m, &v.house, weather, opts)
+                .map(|r| r.summary)
+                .map_err(|e| VariantError {
+                    variant: v.name.clone(),
+                    source: e,
+                });
             done();
             r
         })
         .collect();
     let mut sums = Vec::new();
     for r in results {
-        sums.push(r?.summary);
+        sums.push(r?);
     }
     let base = &sums[0];
     let full_year = weather.is_full_year() && opts.from.is_none() && opts.to.is_none();

@@ -21,7 +21,7 @@
 use chrono::NaiveDateTime;
 use dwell_model::{House, ModelFile};
 use dwell_weather::WeatherSeries;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::simulate::StudyError;
 use crate::trace::{hours_until_below, Runner, Trace};
@@ -85,7 +85,7 @@ impl OutageOptions {
 }
 
 /// One zone through the outage.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct OutageZone {
     /// Zone id.
     pub zone: String,
@@ -108,7 +108,7 @@ pub struct OutageZone {
 }
 
 /// The outage study.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct OutageStudy {
     /// House name.
     pub model: String,
@@ -130,9 +130,24 @@ pub struct OutageStudy {
     pub zones: Vec<OutageZone>,
     /// Cautions.
     pub cautions: Vec<String>,
-    /// The path (not serialised).
-    #[serde(skip)]
+    /// The path (not serialised: `outage_path.csv` holds it, and `dwell-report` reads it back
+    /// from there; empty when deserialised).
+    #[serde(skip, default = "no_trace")]
     pub trace: Trace,
+}
+
+/// An empty trace, for [`OutageStudy`] read back from JSON.
+fn no_trace() -> Trace {
+    Trace {
+        times: Vec::new(),
+        local: Vec::new(),
+        zone_c: Vec::new(),
+        heat_w: Vec::new(),
+        setpoint_c: Vec::new(),
+        outdoor_c: Vec::new(),
+        states: Vec::new(),
+        n: 0,
+    }
 }
 
 /// Runs the outage study.

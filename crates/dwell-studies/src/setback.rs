@@ -22,7 +22,7 @@
 use chrono::{NaiveDate, NaiveTime};
 use dwell_model::{House, ModelFile};
 use dwell_weather::WeatherSeries;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::simulate::StudyError;
 use crate::trace::{period_stamps, Runner, Trace};
@@ -60,7 +60,7 @@ impl Default for SetbackOptions {
 }
 
 /// One zone on one night.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct NightZone {
     /// Zone id.
     pub zone: String,
@@ -102,7 +102,7 @@ pub struct NightZone {
 }
 
 /// One night.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct Night {
     /// Local date of the evening.
     pub night: String,
@@ -111,7 +111,7 @@ pub struct Night {
 }
 
 /// Totals per zone over all nights.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct SetbackTotal {
     /// Zone id.
     pub zone: String,
@@ -130,7 +130,7 @@ pub struct SetbackTotal {
 }
 
 /// The setback study.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct SetbackStudy {
     /// House name.
     pub model: String,
@@ -148,7 +148,8 @@ pub struct SetbackStudy {
     pub total_saving_pct: Option<f64>,
     /// Cautions.
     pub cautions: Vec<String>,
-    /// The run with setback (not serialised).
+    /// The run with setback (not serialised: `setback_path.csv` holds it, and `dwell-report`
+    /// reads it back from there).
     #[serde(skip)]
     pub trace: Option<Trace>,
 }

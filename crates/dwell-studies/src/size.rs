@@ -37,7 +37,7 @@ use std::collections::BTreeMap;
 
 use dwell_model::{House, ModelFile};
 use dwell_weather::WeatherSeries;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::design_weather::DesignSpell;
 use crate::simulate::{simulate, Control, SimOptions, SimResult, StudyError};
@@ -114,7 +114,7 @@ impl SizeOptions {
 }
 
 /// Sizing of one zone.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct ZoneSizing {
     /// Zone id.
     pub zone: String,
@@ -136,11 +136,29 @@ pub struct ZoneSizing {
     /// Installed / max(steady, dynamic) (1).
     pub oversizing_ratio: Option<f64>,
     /// The steady load's breakdown.
+    #[serde(deserialize_with = "ZoneSteadyLoadDef::deserialize")]
     pub breakdown: ZoneSteadyLoad,
 }
 
+/// Reads a [`ZoneSteadyLoad`] back from `sizing.json` (serde's remote derive: the type itself
+/// only serialises; a field missing here is a compile error).
+#[derive(Deserialize)]
+#[serde(remote = "ZoneSteadyLoad")]
+struct ZoneSteadyLoadDef {
+    zone: String,
+    heated: bool,
+    air_c: f64,
+    steady_w: f64,
+    by_group_w: BTreeMap<String, f64>,
+    fabric_w: f64,
+    ventilation_w: f64,
+    to_zones_w: BTreeMap<String, f64>,
+    other_w: f64,
+    by_element_w: BTreeMap<String, f64>,
+}
+
 /// Totals of a sizing.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct SizingTotal {
     /// Sum of zone steady loads (W).
     pub steady_w: f64,
@@ -157,13 +175,14 @@ pub struct SizingTotal {
 }
 
 /// A load duration curve: how many hours the whole-house heating load is at or above a value.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct LoadDuration {
     /// Weather used.
     pub weather: String,
     /// Hours in the run.
     pub hours: usize,
-    /// Hourly mean loads, highest first (W).
+    /// Hourly mean loads, highest first (W); not serialised (`load_duration.csv` holds them,
+    /// and `dwell-report` reads them back from there).
     #[serde(skip)]
     pub sorted_w: Vec<f64>,
     /// Selected points: (hours at or above, load (W)).
@@ -173,7 +192,7 @@ pub struct LoadDuration {
 }
 
 /// One point of a load duration curve.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct LoadPoint {
     /// Hours at or above the load (h).
     pub hours_at_or_above_h: usize,
@@ -182,7 +201,7 @@ pub struct LoadPoint {
 }
 
 /// The whole sizing.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct Sizing {
     /// House name.
     pub model: String,
@@ -257,7 +276,7 @@ fn thermostat_zones(model: &ModelFile, house: &House) -> Vec<Sized> {
 }
 
 /// One point of the capacity curve.
-#[derive(Clone, Debug, Serialize, PartialEq)]
+#[derive(Clone, Debug, Serialize, Deserialize, PartialEq)]
 pub struct CapacityPoint {
     /// Fraction of each zone's dynamic requirement (1).
     pub fraction: f64,
