@@ -70,6 +70,6 @@ pub use expm::expm;
 pub use onoff::OnOffThermostat;
 pub use readout::Readout;
 pub use steady::steady_state;
-pub use stepper::Stepper;
+pub use stepper::{Stepper, RUN_BLOCK};
 pub use system::{InputKind, RcSystem};
 pub use truncation::{ErrorBound, TruncatedModal, Truncation};

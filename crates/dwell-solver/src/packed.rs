@@ -197,6 +197,12 @@ impl Panels {
         Self::from_blocks(a, &DMatrix::zeros(a.nrows(), 0))
     }
 
+    /// The matrix back as a dense `rows × cols` matrix (allocates).
+    pub(crate) fn to_matrix(&self) -> DMatrix<f64> {
+        let np = self.ld / PANEL;
+        DMatrix::from_fn(self.rows, self.cols, |i, j| self.data[j * np + i / PANEL].0[i % PANEL])
+    }
+
     /// Number of columns.
     pub(crate) fn cols(&self) -> usize {
         self.cols

@@ -77,6 +77,9 @@ pub struct Stepper {
     pub(crate) control: Option<Control>,
 }
 
+/// Steps per readout product in [`Stepper::run_known`].
+pub const RUN_BLOCK: usize = 64;
+
 /// `[a | b[:, cols] · scale]`.
 fn join(a: &DMatrix<f64>, b: &DMatrix<f64>, cols: &[usize], scale: f64) -> DMatrix<f64> {
     let mut out = DMatrix::zeros(a.nrows(), a.ncols() + cols.len());
@@ -319,7 +322,7 @@ impl Stepper {
             }
         }
         // SAFETY: forwarded from this function's contract.
-        unsafe { self.step_in::<V, B>() };
+        unsafe { self.step_in::<V, B, true>() };
         let (z, s_next, _) = self.work.split();
         // SAFETY: forwarded from this function's contract.
         unsafe { copy_lanes::<V>(&mut z[..n], s_next) };
@@ -329,7 +332,7 @@ impl Stepper {
     pub(crate) fn outputs_and_next(&mut self) {
         match self.kernel {
             // SAFETY: `Plain` is baseline code.
-            Kernel::Portable => unsafe { self.step_in::<Plain, 2>() },
+            Kernel::Portable => unsafe { self.step_in::<Plain, 2, true>() },
             // SAFETY (both arms): the fused forms are only constructed after
             // `is_x86_feature_detected!` reported their features.
             #[cfg(target_arch = "x86_64")]
@@ -337,6 +340,84 @@ impl Stepper {
             #[cfg(target_arch = "x86_64")]
             Kernel::Avx512 => unsafe { step_avx512(self) },
         }
+    }
+
+    /// `s_next = F ξ + H u_k` only (no readouts).
+    fn next_only(&mut self) {
+        match self.kernel {
+            // SAFETY: `Plain` is baseline code.
+            Kernel::Portable => unsafe { self.step_in::<Plain, 2, false>() },
+            // SAFETY (both arms): the fused forms are only constructed after
+            // `is_x86_feature_detected!` reported their features.
+            #[cfg(target_arch = "x86_64")]
+            Kernel::Avx2Fma => unsafe { next_avx2(self) },
+            #[cfg(target_arch = "x86_64")]
+            Kernel::Avx512 => unsafe { next_avx512(self) },
+        }
+    }
+
+    /// Steps through known inputs: `inputs` holds `u_0 … u_K` row by row (`(K + 1) · m`
+    /// values), and the readouts of the `K` steps are written row by row into `instant_out`
+    /// (`K · p_i`) and `mean_out` (`K · p_m`). The same numbers as `K` calls of
+    /// [`Stepper::step`] (up to the order of rounding), computed differently: the state is
+    /// marched step by step, and the readouts of a block of [`RUN_BLOCK`] steps are one
+    /// matrix–matrix product `Y = O [z_k … z_{k+B−1}]`. The readout matrix is then read once
+    /// per block instead of once per step, which matters when it no longer fits in the
+    /// processor's caches (hundreds of readouts of thousands of states). Allocates its block
+    /// buffers once per call, before stepping. Afterwards [`Stepper::instant`] and
+    /// [`Stepper::mean`] hold the last step's readouts.
+    ///
+    /// # Panics
+    /// If `inputs.len()` is not `(K + 1) · m` for the `K` given by the output lengths, or
+    /// the two outputs disagree on `K`.
+    pub fn run_known(&mut self, inputs: &[f64], instant_out: &mut [f64], mean_out: &mut [f64]) {
+        let (m, pm) = (self.m, self.p_mean);
+        let p = self.work.out().len();
+        let pi = p - pm;
+        let steps = if pi > 0 {
+            instant_out.len() / pi
+        } else if pm > 0 {
+            mean_out.len() / pm
+        } else {
+            inputs.len() / m.max(1) - 1
+        };
+        assert!(
+            instant_out.len() == steps * pi
+                && mean_out.len() == steps * pm
+                && inputs.len() == (steps + 1) * m,
+            "run_known lengths"
+        );
+        if steps == 0 {
+            return;
+        }
+        let zl = self.work.z().len();
+        let blk = RUN_BLOCK.min(steps);
+        let o = self.outputs.to_matrix();
+        let mut zb = DMatrix::<f64>::zeros(zl, blk);
+        let mut yb = DMatrix::<f64>::zeros(p, blk);
+        let (mut k, mut last) = (0, 0);
+        while k < steps {
+            let b = blk.min(steps - k);
+            last = b;
+            for j in 0..b {
+                let u_k = &inputs[(k + j) * m..(k + j + 1) * m];
+                let u_next = &inputs[(k + j + 1) * m..(k + j + 2) * m];
+                self.load_inputs(u_k, u_next);
+                zb.column_mut(j).copy_from_slice(self.work.z());
+                self.next_only();
+                self.commit();
+            }
+            yb.columns_mut(0, b)
+                .gemm(1.0, &o, &zb.columns(0, b), 0.0);
+            for j in 0..b {
+                let col = yb.column(j);
+                mean_out[(k + j) * pm..(k + j + 1) * pm].copy_from_slice(&col.as_slice()[..pm]);
+                instant_out[(k + j) * pi..(k + j + 1) * pi].copy_from_slice(&col.as_slice()[pm..]);
+            }
+            k += b;
+        }
+        let (_, _, out) = self.work.split();
+        out.copy_from_slice(yb.column(last - 1).as_slice());
     }
 
     /// `ξ ← s_next`.
@@ -352,12 +433,14 @@ impl Stepper {
     /// # Safety
     /// The processor must support `V`'s instructions.
     #[inline(always)]
-    unsafe fn step_in<V: Lane8, const B: usize>(&mut self) {
+    unsafe fn step_in<V: Lane8, const B: usize, const OUT: bool>(&mut self) {
         let (n, m) = (self.n, self.m);
         // SAFETY: forwarded from this function's contract.
         let (z, s_next, out) = self.work.split();
         unsafe {
-            self.outputs.gemv_in::<V, B>(z, out, Init::Set);
+            if OUT {
+                self.outputs.gemv_in::<V, B>(z, out, Init::Set);
+            }
             match &self.decay {
                 None => self.advance.gemv_in::<V, B>(&z[..n + m], s_next, Init::Set),
                 Some(d) => {
@@ -470,12 +553,26 @@ unsafe fn whole_step_avx512(s: &mut Stepper, u_k: &[f64], u_next: &[f64]) {
 #[target_feature(enable = "avx2,fma")]
 unsafe fn step_avx2(s: &mut Stepper) {
     // SAFETY: this function's features are those of `Avx2`.
-    unsafe { s.step_in::<Avx2, 4>() }
+    unsafe { s.step_in::<Avx2, 4, true>() }
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2,fma")]
+unsafe fn next_avx2(s: &mut Stepper) {
+    // SAFETY: this function's features are those of `Avx2`.
+    unsafe { s.step_in::<Avx2, 4, false>() }
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f,avx2,fma")]
+unsafe fn next_avx512(s: &mut Stepper) {
+    // SAFETY: this function's features include those of `Avx512`.
+    unsafe { s.step_in::<Avx512, 8, false>() }
 }
 
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx512f,avx2,fma")]
 unsafe fn step_avx512(s: &mut Stepper) {
     // SAFETY: this function's features include those of `Avx512`.
-    unsafe { s.step_in::<Avx512, 8>() }
+    unsafe { s.step_in::<Avx512, 8, true>() }
 }
