@@ -54,7 +54,48 @@ pub struct Forcing {
     pub occupancy: Vec<Option<WeeklySchedule>>,
 }
 
-fn schedule(m: &ModelFile, id: &Option<String>) -> Option<WeeklySchedule> {
+/// Local standard time minus UTC of the model's site (`site.utc_offset_h`, rounded to 1 s).
+pub fn site_offset(model: &ModelFile) -> Duration {
+    Duration::seconds((model.site.utc_offset_h * 3600.0).round() as i64)
+}
+
+/// The instant `k` steps of `step_s` (s) after `t0`, rounded to 1 ms.
+pub fn step_instant(t0: DateTime<FixedOffset>, step_s: f64, k: usize) -> DateTime<FixedOffset> {
+    t0 + Duration::milliseconds((k as f64 * step_s * 1000.0).round() as i64)
+}
+
+/// Mean of a schedule over the step of `step_s` (s) that starts at local time `t0`, sampled
+/// at the middles of 5-minute slices (one sample for steps under 7.5 minutes): exact for
+/// schedules whose changes fall on 5-minute marks.
+pub fn schedule_step_mean(s: &WeeklySchedule, t0: NaiveDateTime, step_s: f64) -> f64 {
+    let n = ((step_s / 300.0).round() as usize).max(1);
+    let dt = step_s / n as f64;
+    let mut sum = 0.0;
+    for i in 0..n {
+        let t = t0 + Duration::milliseconds(((i as f64 + 0.5) * dt * 1000.0) as i64);
+        sum += s.value_at(t);
+    }
+    sum / n as f64
+}
+
+/// Value of a schedule one second before local time `t` (a setpoint in force at the end of a
+/// step that ends at `t`).
+pub fn schedule_before(s: &WeeklySchedule, t: NaiveDateTime) -> f64 {
+    s.value_at(t - Duration::seconds(1))
+}
+
+/// The deep-ground temperature of a run (°C): the site's `deep_ground_c`, else the mean of the
+/// weather's ground column, else the weather's mean air temperature.
+pub fn ground_temperature(model: &ModelFile, weather: &WeatherSeries) -> f64 {
+    model.site.deep_ground_c.unwrap_or_else(|| match &weather.ground_c {
+        Some(g) => g.iter().sum::<f64>() / g.len() as f64,
+        None => weather.annual_mean_air_c(),
+    })
+}
+
+/// The model's schedule `id`, ready to evaluate (None: no id, unknown id or invalid schedule,
+/// which validation has already reported).
+pub fn model_schedule(m: &ModelFile, id: &Option<String>) -> Option<WeeklySchedule> {
     let id = id.as_ref()?;
     let s = m.schedules.iter().find(|s| &s.id == id)?;
     WeeklySchedule::new(s).ok()
@@ -71,10 +112,7 @@ impl Forcing {
         };
         let needs_sun = house.inputs.iter().any(|r| matches!(r, InputRole::SolarPlane { .. }));
         let sun = needs_sun.then(|| SunTable::new(weather, &site));
-        let ground_c = model.site.deep_ground_c.unwrap_or_else(|| match &weather.ground_c {
-            Some(g) => g.iter().sum::<f64>() / g.len() as f64,
-            None => weather.annual_mean_air_c(),
-        });
+        let ground_c = ground_temperature(model, weather);
         let mut f = Forcing {
             times: weather.times.clone(),
             air_c: weather.air_c.clone(),
@@ -87,17 +125,17 @@ impl Forcing {
             fixed: vec![],
             planes: vec![],
             scheduled: vec![],
-            local_offset: Duration::seconds((model.site.utc_offset_h * 3600.0).round() as i64),
+            local_offset: site_offset(model),
             setpoints: model
                 .heaters
                 .iter()
                 .map(|h| match (h.setpoint_c, &h.setpoint_schedule) {
                     (Some(t), _) => Some(WeeklySchedule::constant(t)),
-                    (None, s) => schedule(model, s),
+                    (None, s) => model_schedule(model, s),
                 })
                 .collect(),
-            power: model.heaters.iter().map(|h| schedule(model, &h.power_schedule)).collect(),
-            occupancy: model.zones.iter().map(|z| schedule(model, &z.occupancy)).collect(),
+            power: model.heaters.iter().map(|h| model_schedule(model, &h.power_schedule)).collect(),
+            occupancy: model.zones.iter().map(|z| model_schedule(model, &z.occupancy)).collect(),
         };
         for (j, role) in house.inputs.iter().enumerate() {
             match role {
@@ -117,13 +155,13 @@ impl Forcing {
                         .filter(|g| &g.zone == zid)
                         .map(|g| Scheduled {
                             power_w: g.power_w.unwrap_or(0.0) + g.w_per_m2.unwrap_or(0.0) * area,
-                            schedule: schedule(model, &g.schedule),
+                            schedule: model_schedule(model, &g.schedule),
                         })
                         .collect();
                     f.scheduled.push((j, terms));
                 }
                 InputRole::RawHeat { power_w, schedule: s } => {
-                    f.scheduled.push((j, vec![Scheduled { power_w: *power_w, schedule: schedule(model, s) }]));
+                    f.scheduled.push((j, vec![Scheduled { power_w: *power_w, schedule: model_schedule(model, s) }]));
                 }
                 InputRole::Heater { .. } => {}
             }
@@ -138,7 +176,7 @@ impl Forcing {
 
     /// Instant of step `k` counted from stamp `start` (UTC-aware).
     pub fn instant(&self, start: usize, k: usize) -> DateTime<FixedOffset> {
-        self.times[start] + Duration::milliseconds((k as f64 * self.step_s * 1000.0).round() as i64)
+        step_instant(self.times[start], self.step_s, k)
     }
 
     /// Local standard time of an instant.
@@ -161,21 +199,17 @@ impl Forcing {
 
     /// Mean over step `k` of a schedule's value, sampled every 5 minutes (or once a step).
     pub fn step_mean(&self, s: &WeeklySchedule, start: usize, k: usize) -> f64 {
-        let n = ((self.step_s / 300.0).round() as usize).max(1);
-        let t0 = self.local(self.instant(start, k));
-        let dt = self.step_s / n as f64;
-        let mut sum = 0.0;
-        for i in 0..n {
-            let t = t0 + Duration::milliseconds(((i as f64 + 0.5) * dt * 1000.0) as i64);
-            sum += s.value_at(t);
-        }
-        sum / n as f64
+        schedule_step_mean(s, self.local(self.instant(start, k)), self.step_s)
     }
 
     /// Value of a schedule just before the end of step `k` (setpoints).
     pub fn at_step_end(&self, s: &WeeklySchedule, start: usize, k: usize) -> f64 {
-        let t = self.local(self.instant(start, k + 1)) - Duration::seconds(1);
-        s.value_at(t)
+        schedule_before(s, self.local(self.instant(start, k + 1)))
+    }
+
+    /// Local standard time minus UTC of the site.
+    pub fn local_offset(&self) -> Duration {
+        self.local_offset
     }
 
     /// Fills `u` (length = number of inputs) for step `k` from stamp `start`, heaters at 0.

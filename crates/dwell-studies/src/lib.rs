@@ -27,3 +27,4 @@ pub mod compare;
 #[cfg(test)]
 mod monotone_tests;
 pub mod sweep;
+pub mod fastpath;

@@ -203,7 +203,9 @@ pub struct SimResult {
 /// Allowed steps (s): divisors of one hour from 1 minute.
 pub const ALLOWED_STEPS_MIN: [u32; 12] = [1, 2, 3, 4, 5, 6, 10, 12, 15, 20, 30, 60];
 
-fn cop_at(h: &dwell_model::file::Heater, t: f64) -> f64 {
+/// Efficiency or COP of heater `h` at outdoor air `t` (°C): linear between the points of its
+/// COP curve, flat beyond the ends.
+pub(crate) fn cop_at(h: &dwell_model::file::Heater, t: f64) -> f64 {
     let c = &h.cop_curve;
     if c.is_empty() {
         return h.efficiency;

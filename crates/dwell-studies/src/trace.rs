@@ -235,26 +235,37 @@ impl<'a> Runner<'a> {
 
 /// The stamps `[start, end]` of the weather within local days `from` … `to` (inclusive).
 pub fn period_stamps(f: &Forcing, from: Option<chrono::NaiveDate>, to: Option<chrono::NaiveDate>) -> Result<(usize, usize), StudyError> {
-    let n = f.hours();
+    period_stamps_in(&f.times, f.local_offset(), from, to)
+}
+
+/// [`period_stamps`] for stamps `times` whose local standard time is UTC + `offset`.
+pub fn period_stamps_in(
+    times: &[DateTime<FixedOffset>],
+    offset: chrono::Duration,
+    from: Option<chrono::NaiveDate>,
+    to: Option<chrono::NaiveDate>,
+) -> Result<(usize, usize), StudyError> {
+    let n = times.len();
+    let local = |i: usize| times[i].naive_utc() + offset;
     let mut start = 0;
     let mut end = n - 1;
     if let Some(d) = from {
         let t0 = d.and_hms_opt(0, 0, 0).expect("midnight");
         start = (0..n)
-            .find(|&i| f.local(f.times[i]) >= t0)
-            .ok_or_else(|| StudyError::Option(format!("--from {d} is after the end of the weather ({})", f.times[n - 1])))?;
+            .find(|&i| local(i) >= t0)
+            .ok_or_else(|| StudyError::Option(format!("--from {d} is after the end of the weather ({})", times[n - 1])))?;
     }
     if let Some(d) = to {
         let t1 = d.succ_opt().unwrap_or(d).and_hms_opt(0, 0, 0).expect("midnight");
         end = (0..n)
             .rev()
-            .find(|&i| f.local(f.times[i]) <= t1)
-            .ok_or_else(|| StudyError::Option(format!("--to {d} is before the start of the weather ({})", f.times[0])))?;
+            .find(|&i| local(i) <= t1)
+            .ok_or_else(|| StudyError::Option(format!("--to {d} is before the start of the weather ({})", times[0])))?;
     }
     if end <= start {
         return Err(StudyError::Option(format!(
             "the period from {} to {} holds no whole hour of weather; widen --from/--to",
-            f.times[start], f.times[end]
+            times[start], times[end]
         )));
     }
     Ok((start, end))
