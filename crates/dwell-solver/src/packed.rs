@@ -200,7 +200,9 @@ impl Panels {
     /// The matrix back as a dense `rows × cols` matrix (allocates).
     pub(crate) fn to_matrix(&self) -> DMatrix<f64> {
         let np = self.ld / PANEL;
-        DMatrix::from_fn(self.rows, self.cols, |i, j| self.data[j * np + i / PANEL].0[i % PANEL])
+        DMatrix::from_fn(self.rows, self.cols, |i, j| {
+            self.data[j * np + i / PANEL].0[i % PANEL]
+        })
     }
 
     /// Number of columns.
@@ -240,10 +242,19 @@ impl Panels {
     ) {
         assert!(x.len() >= self.cols && y.len() >= self.rows, "gemv shapes");
         let x = &x[..self.cols];
-        let y = &mut y[..self.rows];
         if let Init::Scaled(d, s) = init {
             assert!(d.len() >= self.rows && s.len() >= self.rows, "gemv shapes");
         }
+        // Where `y` (and `d`, `s`) extend to the padded height, whole panels are stored:
+        // the padding rows of the matrix are zero, so they receive `0` (or `d·s` with `d`
+        // padded by zeros).
+        let padded = y.len() >= self.ld
+            && match init {
+                Init::Set => true,
+                Init::Scaled(d, s) => d.len() >= self.ld && s.len() >= self.ld,
+            };
+        let room = if padded { self.ld } else { self.rows };
+        let y = &mut y[..room];
         let np = self.ld / PANEL;
         // (G, S): G panels side by side, S column sets; G·S ≤ B accumulators.
         // SAFETY (all calls): forwarded from this function's contract.
@@ -280,7 +291,7 @@ impl Panels {
         y: &mut [f64],
         init: Init,
     ) -> usize {
-        let (np, rows) = (self.ld / PANEL, self.rows);
+        let (np, rows) = (self.ld / PANEL, y.len());
         let main = x.len() / S * S;
         let (blocks, _) = x[..main].as_chunks::<S>();
         while p0 + G <= np {
@@ -306,10 +317,21 @@ impl Panels {
                         acc[0][g] = V::fmadd(xj, V::load(&col[g].0), acc[0][g]);
                     }
                 }
-                for s in 1..S {
-                    for g in 0..G {
-                        acc[0][g] = V::add(acc[0][g], acc[s][g]);
+                // Pairwise sum of the sets (an odd one out joins set 0).
+                let mut width = S;
+                while width > 1 {
+                    let half = width / 2;
+                    for i in 0..half {
+                        for g in 0..G {
+                            acc[i][g] = V::add(acc[i][g], acc[i + half][g]);
+                        }
                     }
+                    if width % 2 == 1 {
+                        for g in 0..G {
+                            acc[0][g] = V::add(acc[0][g], acc[width - 1][g]);
+                        }
+                    }
+                    width = half;
                 }
                 let mut sum = acc[0];
                 let r0 = p0 * PANEL;

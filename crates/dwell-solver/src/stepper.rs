@@ -407,8 +407,7 @@ impl Stepper {
                 self.next_only();
                 self.commit();
             }
-            yb.columns_mut(0, b)
-                .gemm(1.0, &o, &zb.columns(0, b), 0.0);
+            yb.columns_mut(0, b).gemm(1.0, &o, &zb.columns(0, b), 0.0);
             for j in 0..b {
                 let col = yb.column(j);
                 mean_out[(k + j) * pm..(k + j + 1) * pm].copy_from_slice(&col.as_slice()[..pm]);
@@ -436,7 +435,8 @@ impl Stepper {
     unsafe fn step_in<V: Lane8, const B: usize, const OUT: bool>(&mut self) {
         let (n, m) = (self.n, self.m);
         // SAFETY: forwarded from this function's contract.
-        let (z, s_next, out) = self.work.split();
+        // The padded sections let the kernels store whole panels (zeros into the padding).
+        let (z, s_next, out) = self.work.split_padded();
         unsafe {
             if OUT {
                 self.outputs.gemv_in::<V, B>(z, out, Init::Set);
@@ -444,9 +444,10 @@ impl Stepper {
             match &self.decay {
                 None => self.advance.gemv_in::<V, B>(&z[..n + m], s_next, Init::Set),
                 Some(d) => {
-                    let (s, w) = z.split_at(n);
-                    self.advance
-                        .gemv_in::<V, B>(&w[..m], s_next, Init::Scaled(d, s));
+                    // `s` is read over the padded height too: beyond `n` it meets the
+                    // inputs, which the zero padding of `d` multiplies by 0.
+                    let w = &z[n..n + m];
+                    self.advance.gemv_in::<V, B>(w, s_next, Init::Scaled(d, z));
                 }
             }
         }

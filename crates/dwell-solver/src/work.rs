@@ -76,6 +76,17 @@ impl Work {
         &self.flat()[self.out_at..self.out_at + self.out_len]
     }
 
+    /// `(z, s_next, out)`, all writable, each with its padding to a whole number of lines
+    /// (zero unless written).
+    #[inline]
+    pub(crate) fn split_padded(&mut self) -> (&mut [f64], &mut [f64], &mut [f64]) {
+        let (s_at, out_at) = (self.s_at, self.out_at);
+        let flat = self.flat_mut();
+        let (z, rest) = flat.split_at_mut(s_at);
+        let (s, out) = rest.split_at_mut(out_at - s_at);
+        (z, s, out)
+    }
+
     /// `(z, s_next, out)`, all writable.
     #[inline]
     pub(crate) fn split(&mut self) -> (&mut [f64], &mut [f64], &mut [f64]) {
