@@ -28,6 +28,11 @@
 //! (`stepper.rs`), so the kernels inline into one another and the per-step overhead is a
 //! single indirect branch.
 
+// Index loops over fixed-size accumulator arrays (`for g in 0..G`) are deliberate: with
+// constant bounds they unroll into registers, which iterator chains over two arrays at once
+// obscure.
+#![allow(clippy::needless_range_loop)]
+
 use nalgebra::DMatrix;
 
 /// Rows per panel: one AVX-512 register, two AVX2 registers or four SSE2 registers of `f64`.

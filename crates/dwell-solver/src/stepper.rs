@@ -374,13 +374,11 @@ impl Stepper {
         let (m, pm) = (self.m, self.p_mean);
         let p = self.work.out().len();
         let pi = p - pm;
-        let steps = if pi > 0 {
-            instant_out.len() / pi
-        } else if pm > 0 {
-            mean_out.len() / pm
-        } else {
-            inputs.len() / m.max(1) - 1
-        };
+        let steps = instant_out
+            .len()
+            .checked_div(pi)
+            .or_else(|| mean_out.len().checked_div(pm))
+            .unwrap_or_else(|| (inputs.len() / m.max(1)).saturating_sub(1));
         assert!(
             instant_out.len() == steps * pi
                 && mean_out.len() == steps * pm
