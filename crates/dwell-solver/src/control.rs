@@ -116,7 +116,7 @@ impl Stepper {
                 )));
             }
         }
-        self.control = Some(Control {
+        self.control = Some(Box::new(Control {
             channels: channels.to_vec(),
             influence,
             state_gain: Packed::from_matrix(&gains),
@@ -126,7 +126,7 @@ impl Stepper {
             now: vec![0.0; q],
             scratch: LcpScratch::new(q),
             sweeps: 0,
-        });
+        }));
         Ok(self)
     }
 

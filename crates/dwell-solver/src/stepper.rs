@@ -74,7 +74,9 @@ pub struct Stepper {
     pub(crate) work: Work,
     shifted: bool,
     pub(crate) p_mean: usize,
-    pub(crate) control: Option<Control>,
+    /// Boxed: a thermostat step takes it out and puts it back, which then moves a pointer,
+    /// not the whole struct.
+    pub(crate) control: Option<Box<Control>>,
 }
 
 /// Steps per readout product in [`Stepper::run_known`].
