@@ -29,7 +29,7 @@ pub mod compare;
 
 pub use charts_simulate::NamedChart;
 pub use outdir::{OutputDir, ReportError};
-pub use report_simulate::{write_charts, write_simulation_inputs, write_simulation_report, write_simulation_report_for, DrawnChart};
+pub use report_simulate::{write_charts, write_simulation_inputs, write_simulation_report_for, DrawnChart};
 pub use report_studies::{write_compare_report, write_outage_report, write_setback_report, write_sizing_report, write_study_report};
 pub use run_files::SimulationFiles;
 pub use run_marker::{RunCommand, RunMarker};

@@ -124,18 +124,9 @@ pub fn write_charts(
     Ok((drawn, files))
 }
 
-/// Reads the simulation in `out`, draws its charts (temperatures over the given local days,
-/// or the default window) and writes them and `report.html`.
-pub fn write_simulation_report(
-    out: &OutputDir,
-    from: Option<NaiveDate>,
-    to: Option<NaiveDate>,
-) -> Result<Vec<PathBuf>, ReportError> {
-    let f = SimulationFiles::read(out.path())?;
-    write_simulation_report_for(out, &f, from, to)
-}
-
-/// As [`write_simulation_report`], for files already read.
+/// Draws the charts of the simulation whose files (read by [`SimulationFiles::read`]) are
+/// in `out`, temperatures over the given local days or the default window, and writes them
+/// and `report.html`.
 pub fn write_simulation_report_for(
     out: &OutputDir,
     f: &SimulationFiles,

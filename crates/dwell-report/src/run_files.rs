@@ -6,7 +6,7 @@ use std::path::Path;
 
 use chrono::{DateTime, FixedOffset, NaiveDateTime};
 
-use crate::outdir::ReportError;
+use crate::read_error::{numbers, read_csv, read_text, ReadError};
 
 /// The hourly results and summaries of one simulation, as read from its output folder.
 #[derive(Clone, Debug)]
@@ -30,78 +30,26 @@ pub struct SimulationFiles {
     pub house: Option<serde_json::Value>,
 }
 
-fn bad(path: &Path, message: String) -> ReportError {
-    ReportError::Format {
-        what: path.display().to_string(),
-        message,
-    }
-}
-
-fn read(path: &Path) -> Result<String, ReportError> {
-    std::fs::read_to_string(path).map_err(|source| ReportError::Io {
-        path: path.display().to_string(),
-        source,
-    })
-}
-
 /// Parses a stamp written by the report (`%Y-%m-%dT%H:%M%:z`).
 pub fn parse_stamp(s: &str) -> Option<DateTime<FixedOffset>> {
     DateTime::parse_from_str(s, "%Y-%m-%dT%H:%M%:z").ok()
 }
 
-/// A table: header and columns of text.
-fn read_csv(path: &Path) -> Result<(Vec<String>, Vec<Vec<String>>), ReportError> {
-    let text = read(path)?;
-    let mut r = csv::Reader::from_reader(text.as_bytes());
-    let header: Vec<String> = r
-        .headers()
-        .map_err(|e| bad(path, e.to_string()))?
-        .iter()
-        .map(String::from)
-        .collect();
-    let mut cols = vec![Vec::new(); header.len()];
-    for (i, rec) in r.records().enumerate() {
-        let rec = rec.map_err(|e| bad(path, format!("row {}: {e}", i + 2)))?;
-        for (c, v) in rec.iter().enumerate().take(header.len()) {
-            cols[c].push(v.to_string());
-        }
-    }
-    Ok((header, cols))
-}
-
-fn numbers(path: &Path, name: &str, col: &[String]) -> Result<Vec<f64>, ReportError> {
-    col.iter()
-        .enumerate()
-        .map(|(i, v)| {
-            if v.is_empty() {
-                Ok(f64::NAN)
-            } else {
-                v.parse::<f64>().map_err(|_| {
-                    bad(
-                        path,
-                        format!("row {}, column {name}: {v:?} is not a number", i + 2),
-                    )
-                })
-            }
-        })
-        .collect()
-}
-
 impl SimulationFiles {
     /// Reads `hourly.csv`, `summary.json` and, if present, `setpoints.csv` and `house.json`
     /// from `dir`.
-    pub fn read(dir: &Path) -> Result<SimulationFiles, ReportError> {
+    pub fn read(dir: &Path) -> Result<SimulationFiles, ReadError> {
         let hp = dir.join("hourly.csv");
         let (header, cols) = read_csv(&hp)?;
         if header.len() < 2 || header[0] != "time" || header[1] != "outdoor_c" {
-            return Err(bad(&hp, "expected columns time, outdoor_c, then <zone>_c and <zone>_heating_w; is this the folder of a `dwell simulate` run?".into()));
+            return Err(ReadError::content(&hp, "expected columns time, outdoor_c, then <zone>_c and <zone>_heating_w; is this the folder of a `dwell simulate` run?"));
         }
         let times = cols[0]
             .iter()
             .enumerate()
             .map(|(i, s)| {
                 parse_stamp(s).ok_or_else(|| {
-                    bad(
+                    ReadError::content(
                         &hp,
                         format!("row {}: time {s:?} is not YYYY-MM-DDTHH:MM+hh:mm", i + 2),
                     )
@@ -109,7 +57,7 @@ impl SimulationFiles {
             })
             .collect::<Result<Vec<_>, _>>()?;
         if times.len() < 2 {
-            return Err(bad(&hp, "fewer than two rows".into()));
+            return Err(ReadError::content(&hp, "fewer than two rows"));
         }
         let outdoor_c = numbers(&hp, "outdoor_c", &cols[1])?;
         let mut zones = Vec::new();
@@ -122,7 +70,7 @@ impl SimulationFiles {
                 .strip_suffix("_c")
                 .filter(|z| b == &format!("{z}_heating_w"));
             let Some(zone) = zone else {
-                return Err(bad(
+                return Err(ReadError::content(
                     &hp,
                     format!("columns {a:?}, {b:?}: expected <zone>_c then <zone>_heating_w"),
                 ));
@@ -142,13 +90,13 @@ impl SimulationFiles {
             }
         }
         let summary_path = dir.join("summary.json");
-        let summary = serde_json::from_str(&read(&summary_path)?)
-            .map_err(|e| bad(&summary_path, e.to_string()))?;
+        let summary = serde_json::from_str(&read_text(&summary_path)?)
+            .map_err(|e| ReadError::content(&summary_path, e.to_string()))?;
         let house_path = dir.join("house.json");
         let house = if house_path.exists() {
             Some(
-                serde_json::from_str(&read(&house_path)?)
-                    .map_err(|e| bad(&house_path, e.to_string()))?,
+                serde_json::from_str(&read_text(&house_path)?)
+                    .map_err(|e| ReadError::content(&house_path, e.to_string()))?,
             )
         } else {
             None

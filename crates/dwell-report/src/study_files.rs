@@ -29,7 +29,7 @@ use dwell_studies::trace::Trace;
 use serde_json::Value;
 
 use crate::outdir::ReportError;
-use crate::read_error::{read_text, ReadError};
+use crate::read_error::{numbers, read_csv, read_text, ReadError};
 use crate::run_marker::{RunCommand, RunMarker, RUN_FILE};
 
 /// Name of the check sheet of the house in an output folder.
@@ -82,45 +82,6 @@ pub fn house_json(house: &House) -> Result<String, ReportError> {
 fn json<T: serde::de::DeserializeOwned>(dir: &Path, name: &str) -> Result<T, ReadError> {
     let path = dir.join(name);
     serde_json::from_str(&read_text(&path)?).map_err(|e| ReadError::content(&path, e.to_string()))
-}
-
-/// Header and text columns of a CSV file.
-fn read_csv(path: &Path) -> Result<(Vec<String>, Vec<Vec<String>>), ReadError> {
-    let text = read_text(path)?;
-    let mut r = csv::Reader::from_reader(text.as_bytes());
-    let header: Vec<String> = r
-        .headers()
-        .map_err(|e| ReadError::content(path, e.to_string()))?
-        .iter()
-        .map(String::from)
-        .collect();
-    let mut cols = vec![Vec::new(); header.len()];
-    for (i, rec) in r.records().enumerate() {
-        let rec = rec.map_err(|e| ReadError::content(path, format!("row {}: {e}", i + 2)))?;
-        for (c, v) in rec.iter().enumerate().take(header.len()) {
-            cols[c].push(v.to_string());
-        }
-    }
-    Ok((header, cols))
-}
-
-/// Numbers of a column; an empty cell is NaN (how the writers leave a missing value).
-fn numbers(path: &Path, name: &str, col: &[String]) -> Result<Vec<f64>, ReadError> {
-    col.iter()
-        .enumerate()
-        .map(|(i, v)| {
-            if v.is_empty() {
-                Ok(f64::NAN)
-            } else {
-                v.parse::<f64>().map_err(|_| {
-                    ReadError::content(
-                        path,
-                        format!("row {}, column {name}: {v:?} is not a number", i + 2),
-                    )
-                })
-            }
-        })
-        .collect()
 }
 
 /// Reads a path file (`setback_path.csv`, `outage_path.csv`): `local_time`, `outdoor_c`, then
