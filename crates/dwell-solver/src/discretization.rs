@@ -154,23 +154,14 @@ impl Discretization {
                 Ok(d)
             }
             Route::Modal => {
-                let p = modal_parts(sys, step_s)?;
-                Ok(Discretization {
-                    route,
-                    step_s,
-                    kinds,
-                    transition: Transition::Diagonal(p.decay),
-                    mean_transition: Transition::Diagonal(p.mean_decay),
-                    gamma0: p.gamma0,
-                    gamma1: p.gamma1,
-                    mean_gamma0: p.mean_gamma0,
-                    mean_gamma1: p.mean_gamma1,
-                    to_nodes: Some(Arc::new(ModalBasis {
-                        t: p.to_nodes,
-                        capacitance: sys.capacitance.clone(),
-                    })),
-                    spectrum: Spectrum::Rates(p.lambda),
-                })
+                let mut p = modal_parts(sys, step_s)?;
+                let t = std::mem::replace(&mut p.to_nodes, DMatrix::zeros(0, 0));
+                let mut d = Self::modal_coordinates(kinds, step_s, p);
+                d.to_nodes = Some(Arc::new(ModalBasis {
+                    t,
+                    capacitance: sys.capacitance.clone(),
+                }));
+                Ok(d)
             }
         }
     }
