@@ -384,6 +384,254 @@ impl Panels {
     }
 }
 
+/// A run of consecutive matrix columns for [`Panels::gemm_in`] and where they find their
+/// operand: matrix column `j0 + i` (`j0` the segment's first column) meets, for product
+/// column `c`, the entry `data[(c + shift) · ld + row_i]` with `row_i = i`, or `rows[i]`
+/// where `rows` is given. So one product reads its right-hand side from several arrays in
+/// place (states from a block buffer, inputs straight from the caller's table), with no copy.
+#[derive(Clone, Copy)]
+pub(crate) struct Segment<'a> {
+    pub(crate) data: &'a [f64],
+    pub(crate) ld: usize,
+    pub(crate) cols: usize,
+    pub(crate) rows: Option<&'a [usize]>,
+    pub(crate) shift: usize,
+}
+
+impl Segment<'_> {
+    /// Whether `count` product columns stay inside `data`.
+    fn fits(&self, count: usize) -> bool {
+        let reach = match self.rows {
+            Some(r) => r.len() >= self.cols && r[..self.cols].iter().all(|&i| i < self.ld),
+            None => self.cols <= self.ld,
+        };
+        let last_row = match self.rows {
+            Some(r) => r[..self.cols].iter().max().map_or(0, |&i| i + 1),
+            None => self.cols,
+        };
+        reach
+            && (self.cols == 0 || self.data.len() >= (count - 1 + self.shift) * self.ld + last_row)
+    }
+}
+
+impl Panels {
+    /// `Y[:, c] = A · X[:, c]` for `c < count`, where the rows of `X` come from `segs` (their
+    /// column counts add up to `A`'s); `Y` column-major with leading dimension
+    /// `ld_y ≥ ⌈rows/8⌉·8`, whole panels stored (zeros into the padding rows).
+    ///
+    /// The "N" kernel of a BLAS `gemm` with one panel by `NC` product columns in registers:
+    /// each matrix line is loaded once per group of `NC` columns and meets `NC` broadcast
+    /// entries, so the `NC` accumulator chains are independent and the loop runs at the rate
+    /// of the multiply-add units instead of at their latency (`gemv` has one chain per panel
+    /// and column set).
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions.
+    ///
+    /// # Panics
+    /// If the segments do not cover `A`'s columns, or a slice is too short for the shapes.
+    #[inline(always)]
+    pub(crate) unsafe fn gemm_in<V: Lane8, const NC: usize>(
+        &self,
+        segs: &[Segment],
+        count: usize,
+        y: &mut [f64],
+        ld_y: usize,
+    ) {
+        if count == 0 {
+            return;
+        }
+        assert!(
+            ld_y >= self.ld && y.len() >= (count - 1) * ld_y + self.ld,
+            "gemm shapes"
+        );
+        let mut sink = Store { y, ld: ld_y };
+        // SAFETY: forwarded from this function's contract; `y`'s size was checked.
+        unsafe { self.gemm_into::<V, NC, _>(segs, count, &mut sink) }
+    }
+
+    /// `V = A · X` over `count` product columns as in [`Panels::gemm_in`], each panel of `V`
+    /// fed at once into the diagonal recursion `s[:, c+1] = d ∘ s[:, c] + V[:, c]` (the state
+    /// update of the modal route) instead of being stored: `s` column-major with leading
+    /// dimension `ld_s = ⌈rows/8⌉·8`, column 0 given, columns `1 ..= count` written; `d` of
+    /// length `ld_s`. The recursion's chain of dependent multiply-adds (one a column) runs
+    /// alongside the product's independent ones.
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions.
+    ///
+    /// # Panics
+    /// As [`Panels::gemm_in`], or if `d` or `s` is too short.
+    #[inline(always)]
+    pub(crate) unsafe fn gemm_scan_in<V: Lane8, const NC: usize>(
+        &self,
+        segs: &[Segment],
+        count: usize,
+        d: &[f64],
+        s: &mut [f64],
+    ) {
+        let ld = self.ld;
+        assert!(d.len() >= ld && s.len() >= (count + 1) * ld, "scan shapes");
+        if count == 0 {
+            return;
+        }
+        let mut sink = Scan { d, s, ld };
+        // SAFETY: forwarded from this function's contract; the sizes were checked.
+        unsafe { self.gemm_into::<V, NC, _>(segs, count, &mut sink) }
+    }
+
+    /// The loops of [`Panels::gemm_in`] with the results handed to `sink`.
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions; `sink` must accept every panel of
+    /// `count` columns.
+    #[inline(always)]
+    unsafe fn gemm_into<V: Lane8, const NC: usize, K: Sink>(
+        &self,
+        segs: &[Segment],
+        count: usize,
+        sink: &mut K,
+    ) {
+        assert!(
+            segs.iter().map(|s| s.cols).sum::<usize>() == self.cols
+                && segs.iter().all(|s| s.fits(count)),
+            "gemm shapes"
+        );
+        let y = sink;
+        let full = count / NC * NC;
+        // SAFETY: forwarded from this function's contract; the bounds were checked above.
+        unsafe {
+            let mut c0 = 0;
+            while c0 < full {
+                self.gemm_cols::<V, NC, K>(segs, c0, y);
+                c0 += NC;
+            }
+            // Left-over columns in narrower groups (a group of one is a chain of dependent
+            // multiply-adds, four times slower per column than a group of four).
+            while NC > 4 && c0 + 4 <= count {
+                self.gemm_cols::<V, 4, K>(segs, c0, y);
+                c0 += 4;
+            }
+            while NC > 2 && c0 + 2 <= count {
+                self.gemm_cols::<V, 2, K>(segs, c0, y);
+                c0 += 2;
+            }
+            while c0 < count {
+                self.gemm_cols::<V, 1, K>(segs, c0, y);
+                c0 += 1;
+            }
+        }
+    }
+
+    /// Product columns `c0 .. c0 + NC` of [`Panels::gemm_in`].
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions, and the shapes must have been checked.
+    #[inline(always)]
+    unsafe fn gemm_cols<V: Lane8, const NC: usize, K: Sink>(
+        &self,
+        segs: &[Segment],
+        c0: usize,
+        sink: &mut K,
+    ) {
+        let np = self.ld / PANEL;
+        let ap = self.data.as_ptr();
+        for p in 0..np {
+            // SAFETY: `gemm_in` checked that every entry read lies inside its segment's
+            // slice and every panel written inside `y`; `V`'s instructions are supported.
+            unsafe {
+                let mut acc = [V::zero(); NC];
+                let mut j = 0;
+                for seg in segs {
+                    let xp = seg.data.as_ptr().add((c0 + seg.shift) * seg.ld);
+                    match seg.rows {
+                        None => {
+                            for i in 0..seg.cols {
+                                let a = V::load(&(*ap.add((j + i) * np + p)).0);
+                                for c in 0..NC {
+                                    let xv = *xp.add(c * seg.ld + i);
+                                    acc[c] = V::fmadd(a, V::splat(xv), acc[c]);
+                                }
+                            }
+                        }
+                        Some(rows) => {
+                            for (i, &r) in rows[..seg.cols].iter().enumerate() {
+                                let a = V::load(&(*ap.add((j + i) * np + p)).0);
+                                for c in 0..NC {
+                                    let xv = *xp.add(c * seg.ld + r);
+                                    acc[c] = V::fmadd(a, V::splat(xv), acc[c]);
+                                }
+                            }
+                        }
+                    }
+                    j += seg.cols;
+                }
+                sink.put::<V, NC>(p, c0, acc);
+            }
+        }
+    }
+}
+
+/// Where [`Panels::gemm_into`] delivers each finished panel of product columns.
+trait Sink {
+    /// Panel `p` of product columns `c0 .. c0 + NC`.
+    ///
+    /// # Safety
+    /// The processor must support `V`'s instructions, and the sink must have room for
+    /// these columns.
+    unsafe fn put<V: Lane8, const NC: usize>(&mut self, p: usize, c0: usize, acc: [V; NC]);
+}
+
+/// Stores the product, column-major with leading dimension `ld`.
+struct Store<'a> {
+    y: &'a mut [f64],
+    ld: usize,
+}
+
+impl Sink for Store<'_> {
+    #[inline(always)]
+    unsafe fn put<V: Lane8, const NC: usize>(&mut self, p: usize, c0: usize, acc: [V; NC]) {
+        let yp = self.y.as_mut_ptr();
+        for c in 0..NC {
+            // SAFETY: `gemm_in` checked that `y` holds every column's panels.
+            unsafe {
+                let dst = yp
+                    .add((c0 + c) * self.ld + p * PANEL)
+                    .cast::<[f64; PANEL]>();
+                V::store(acc[c], &mut *dst);
+            }
+        }
+    }
+}
+
+/// Feeds the product into `s[:, c+1] = d ∘ s[:, c] + V[:, c]`.
+struct Scan<'a> {
+    d: &'a [f64],
+    s: &'a mut [f64],
+    ld: usize,
+}
+
+impl Sink for Scan<'_> {
+    #[inline(always)]
+    unsafe fn put<V: Lane8, const NC: usize>(&mut self, p: usize, c0: usize, acc: [V; NC]) {
+        let sp = self.s.as_mut_ptr();
+        let r = p * PANEL;
+        // SAFETY: `gemm_scan_in` checked that `d` and columns `0 ..= count` of `s` are there;
+        // column `c0` was written before (given, or by the previous group of columns).
+        unsafe {
+            let d = V::load(&*self.d.as_ptr().add(r).cast::<[f64; PANEL]>());
+            let mut x = V::load(&*sp.add(c0 * self.ld + r).cast::<[f64; PANEL]>());
+            for c in 0..NC {
+                x = V::fmadd(d, x, acc[c]);
+                V::store(
+                    x,
+                    &mut *sp.add((c0 + c + 1) * self.ld + r).cast::<[f64; PANEL]>(),
+                );
+            }
+        }
+    }
+}
+
 /// Eight `f64` lanes (one panel column) in the registers of one kernel form.
 ///
 /// # Safety
@@ -402,6 +650,10 @@ pub(crate) trait Lane8: Copy {
     unsafe fn add(a: Self, b: Self) -> Self;
     /// Writes the lanes to `p`.
     unsafe fn store(self, p: &mut [f64; PANEL]);
+    /// `dst ← src` (equal lengths) in this form's registers, a short tail masked where the
+    /// form can: a row of a few values copied this way costs a few instructions, where
+    /// `copy_from_slice` calls `memcpy`.
+    unsafe fn copy(dst: &mut [f64], src: &[f64]);
 }
 
 /// The baseline form: plain arrays, separate multiply and add (SSE2 on x86-64).
@@ -440,6 +692,10 @@ impl Lane8 for Plain {
     #[inline(always)]
     unsafe fn store(self, p: &mut [f64; PANEL]) {
         *p = self.0;
+    }
+    #[inline(always)]
+    unsafe fn copy(dst: &mut [f64], src: &[f64]) {
+        dst.copy_from_slice(src);
     }
 }
 
@@ -496,6 +752,30 @@ mod x86 {
                 _mm256_storeu_pd(p.as_mut_ptr().add(4), self.0[1]);
             }
         }
+        #[inline]
+        #[target_feature(enable = "avx2,fma")]
+        unsafe fn copy(dst: &mut [f64], src: &[f64]) {
+            assert_eq!(dst.len(), src.len(), "copy lengths");
+            let (len, d, s) = (src.len(), dst.as_mut_ptr(), src.as_ptr());
+            let mut i = 0;
+            // SAFETY: every access is below `len` (whole chunks, then a masked tail).
+            unsafe {
+                while i + 4 <= len {
+                    _mm256_storeu_pd(d.add(i), _mm256_loadu_pd(s.add(i)));
+                    i += 4;
+                }
+                if i < len {
+                    let r = (len - i) as i64;
+                    let mask = _mm256_set_epi64x(
+                        -i64::from(r > 3),
+                        -i64::from(r > 2),
+                        -i64::from(r > 1),
+                        -1,
+                    );
+                    _mm256_maskstore_pd(d.add(i), mask, _mm256_maskload_pd(s.add(i), mask));
+                }
+            }
+        }
     }
 
     /// AVX-512F: one 512-bit register.
@@ -535,6 +815,25 @@ mod x86 {
             // SAFETY: `p` holds 8 values; unaligned store.
             unsafe { _mm512_storeu_pd(p.as_mut_ptr(), self.0) }
         }
+        #[inline]
+        #[target_feature(enable = "avx512f")]
+        unsafe fn copy(dst: &mut [f64], src: &[f64]) {
+            assert_eq!(dst.len(), src.len(), "copy lengths");
+            let (len, d, s) = (src.len(), dst.as_mut_ptr(), src.as_ptr());
+            let mut i = 0;
+            // SAFETY: every access is below `len` (whole chunks, then a masked tail, whose
+            // masked-off lanes are neither read nor written).
+            unsafe {
+                while i + PANEL <= len {
+                    _mm512_storeu_pd(d.add(i), _mm512_loadu_pd(s.add(i)));
+                    i += PANEL;
+                }
+                if i < len {
+                    let mask: __mmask8 = (1u8 << (len - i)) - 1;
+                    _mm512_mask_storeu_pd(d.add(i), mask, _mm512_maskz_loadu_pd(mask, s.add(i)));
+                }
+            }
+        }
     }
 }
 
@@ -568,6 +867,138 @@ mod tests {
         let mut y = vec![1.0; 3];
         p.mul_into(&x, &mut y);
         assert_eq!(y, want.as_slice());
+    }
+
+    /// The product over segments (consecutive rows, a row map, a shifted column) and the
+    /// fused recursion, every form, column counts around the group widths (8, 4, 2, 1),
+    /// against nalgebra on small integers (so exact: bit for bit).
+    #[test]
+    fn gemm_over_segments_and_the_fused_scan_match_nalgebra_exactly() {
+        for rows in [1, 6, 8, 9, 17, 40] {
+            for count in [1, 3, 7, 8, 13, 16, 21] {
+                let (n, m, mt) = (rows + 2, 5, 2);
+                let cols = n + m + mt;
+                let a = DMatrix::from_fn(rows, cols, |i, j| ((i * 3 + j * 5) % 11) as f64 - 5.0);
+                let ld_s = n + 3;
+                let sdata: Vec<f64> = (0..ld_s * count).map(|i| (i % 7) as f64 - 3.0).collect();
+                let udata: Vec<f64> = (0..m * (count + 1)).map(|i| (i % 5) as f64 - 1.0).collect();
+                let map = [3, 1];
+                // The right-hand side the segments describe, as one matrix.
+                let x = DMatrix::from_fn(cols, count, |j, c| {
+                    if j < n {
+                        sdata[c * ld_s + j]
+                    } else if j < n + m {
+                        udata[c * m + j - n]
+                    } else {
+                        udata[(c + 1) * m + map[j - n - m]]
+                    }
+                });
+                let want = &a * &x;
+                let segs = [
+                    Segment {
+                        data: &sdata,
+                        ld: ld_s,
+                        cols: n,
+                        rows: None,
+                        shift: 0,
+                    },
+                    Segment {
+                        data: &udata,
+                        ld: m,
+                        cols: m,
+                        rows: None,
+                        shift: 0,
+                    },
+                    Segment {
+                        data: &udata,
+                        ld: m,
+                        cols: mt,
+                        rows: Some(&map),
+                        shift: 1,
+                    },
+                ];
+                let p = Panels::from_matrix(&a);
+                let ld_y = rows.div_ceil(PANEL) * PANEL;
+                // The recursion's decay: 0, ±1, 2 keep every value an integer.
+                let d: Vec<f64> = (0..ld_y).map(|i| [1.0, -1.0, 0.0, 2.0][i % 4]).collect();
+                let s0: Vec<f64> = (0..ld_y).map(|i| (i % 3) as f64).collect();
+                let mut scan_want = vec![0.0; ld_y * (count + 1)];
+                scan_want[..ld_y].copy_from_slice(&s0);
+                for c in 0..count {
+                    for i in 0..ld_y {
+                        let v = if i < rows { want[(i, c)] } else { 0.0 };
+                        scan_want[(c + 1) * ld_y + i] = d[i] * scan_want[c * ld_y + i] + v;
+                    }
+                }
+                for k in Kernel::available() {
+                    let mut y = vec![f64::NAN; ld_y * count];
+                    let mut s = vec![f64::NAN; ld_y * (count + 1)];
+                    s[..ld_y].copy_from_slice(&s0);
+                    // SAFETY: each form only where the processor has it (`available`).
+                    unsafe {
+                        match k {
+                            Kernel::Portable => {
+                                p.gemm_in::<Plain, 2>(&segs, count, &mut y, ld_y);
+                                p.gemm_scan_in::<Plain, 2>(&segs, count, &d, &mut s);
+                            }
+                            #[cfg(target_arch = "x86_64")]
+                            Kernel::Avx2Fma => {
+                                gemm_both_avx2(&p, &segs, count, &mut y, ld_y, &d, &mut s)
+                            }
+                            #[cfg(target_arch = "x86_64")]
+                            Kernel::Avx512 => {
+                                gemm_both_avx512(&p, &segs, count, &mut y, ld_y, &d, &mut s)
+                            }
+                        }
+                    }
+                    for c in 0..count {
+                        for i in 0..ld_y {
+                            let w = if i < rows { want[(i, c)] } else { 0.0 };
+                            assert_eq!(
+                                y[c * ld_y + i],
+                                w,
+                                "{rows}×{cols}, {count} columns, {k:?}: ({i}, {c})"
+                            );
+                        }
+                    }
+                    assert_eq!(s, scan_want, "{rows} rows, {count} columns, {k:?}: scan");
+                }
+            }
+        }
+    }
+
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx2,fma")]
+    unsafe fn gemm_both_avx2(
+        p: &Panels,
+        segs: &[Segment],
+        count: usize,
+        y: &mut [f64],
+        ld_y: usize,
+        d: &[f64],
+        s: &mut [f64],
+    ) {
+        unsafe {
+            p.gemm_in::<Avx2, 4>(segs, count, y, ld_y);
+            p.gemm_scan_in::<Avx2, 4>(segs, count, d, s);
+        }
+    }
+
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx512f,avx2,fma")]
+    unsafe fn gemm_both_avx512(
+        p: &Panels,
+        segs: &[Segment],
+        count: usize,
+        y: &mut [f64],
+        ld_y: usize,
+        d: &[f64],
+        s: &mut [f64],
+    ) {
+        unsafe {
+            p.gemm_in::<Avx512, 8>(segs, count, y, ld_y);
+            p.gemm_scan_in::<Avx512, 8>(segs, count, d, s);
+        }
     }
 
     /// Every shape around the panel and group boundaries (1–6 panels, so every `(G, S)` pair

@@ -229,9 +229,10 @@ fn shifted_state_matches_the_plain_recursion_with_jumps_and_resets() {
     }
 }
 
-/// `run_known` (readouts as one matrix product per block of steps) against `step` (one
-/// fused product per step): the same numbers up to the order of rounding, over a run that
-/// is not a whole number of blocks, with a temperature jump, for both routes.
+/// `run_known` (products over blocks of steps) against `step` (one fused product per step):
+/// the same numbers up to the order of rounding, over a run that is not a whole number of
+/// blocks, with a temperature jump, for both routes and every kernel form, and for sizes
+/// on both sides of the panel and block boundaries.
 #[test]
 fn run_known_equals_step_by_step() {
     let sys = random_network(31, 40, 5, true);
@@ -266,7 +267,11 @@ fn run_known_equals_step_by_step() {
         let (mut xa, mut xb) = (vec![0.0; n], vec![0.0; n]);
         a.state_into(&mut xa);
         b.state_into(&mut xb);
-        assert_eq!(xa, xb, "{route:?}: the state is marched identically");
+        // The modal route sums `H u_k` in another order (one product per block), so the
+        // states agree to rounding (~1e-15 relative per step, ~200 steps), not bit for bit.
+        for (x, y) in xa.iter().zip(&xb) {
+            worst = worst.max((x - y).abs());
+        }
         // Both are sums of the same ~60 products in a different order (~1e-15 relative of
         // temperatures of order 10-50 °C).
         assert!(worst < 1e-11, "{route:?}: worst {worst:e} K");
