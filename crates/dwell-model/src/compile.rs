@@ -84,7 +84,15 @@ pub struct ZoneInfo {
 }
 
 /// Element group for heat-loss summaries and the energy ledger.
-pub const GROUPS: [&str; 7] = ["walls", "roof", "floor_ground", "windows", "doors", "ventilation", "links"];
+pub const GROUPS: [&str; 7] = [
+    "walls",
+    "roof",
+    "floor_ground",
+    "windows",
+    "doors",
+    "ventilation",
+    "links",
+];
 
 /// The steady conductance of one element (or airflow) from its zone to what lies beyond.
 #[derive(Clone, Debug)]
@@ -188,7 +196,12 @@ fn group_of(kind: OpaqueKind) -> &'static str {
 }
 
 /// Number of nodes for a material layer under the mesh rule (0 = massless).
-pub fn layer_nodes(mat: &Material, thickness_m: f64, override_nodes: Option<u32>, mesh: &Mesh) -> u32 {
+pub fn layer_nodes(
+    mat: &Material,
+    thickness_m: f64,
+    override_nodes: Option<u32>,
+    mesh: &Mesh,
+) -> u32 {
     if let Some(n) = override_nodes {
         return n;
     }
@@ -237,13 +250,26 @@ impl<'a> Compiler<'a> {
             return Some(self.input("ground_c", Hold::Linear, InputRole::Ground));
         }
         let b = self.m.boundaries.iter().find(|b| b.id == side)?;
-        Some(self.input(&format!("boundary_{}_c", b.id), Hold::Linear, InputRole::Boundary { temperature_c: b.temperature_c }))
+        Some(self.input(
+            &format!("boundary_{}_c", b.id),
+            Hold::Linear,
+            InputRole::Boundary {
+                temperature_c: b.temperature_c,
+            },
+        ))
     }
 
     fn solar(&mut self, tilt: f64, azimuth: f64) -> InputId {
         let az = if tilt == 0.0 { 0.0 } else { azimuth };
         let name = format!("sun_tilt{}_az{}_w_m2", fmt_angle(tilt), fmt_angle(az));
-        self.input(&name, Hold::Step, InputRole::SolarPlane { tilt_deg: tilt, azimuth_deg: az })
+        self.input(
+            &name,
+            Hold::Step,
+            InputRole::SolarPlane {
+                tilt_deg: tilt,
+                azimuth_deg: az,
+            },
+        )
     }
 
     /// Resistance/capacity pieces of a construction, outside first; also its bare resistance.
@@ -273,7 +299,11 @@ impl<'a> Compiler<'a> {
                 let nf = n as f64;
                 for k in 0..n {
                     out.push(Piece::R(r / nf / 2.0));
-                    let name = if n == 1 { format!("l{}_{}", li + 1, mid) } else { format!("l{}_{}.{}", li + 1, mid, k + 1) };
+                    let name = if n == 1 {
+                        format!("l{}_{}", li + 1, mid)
+                    } else {
+                        format!("l{}_{}.{}", li + 1, mid, k + 1)
+                    };
                     out.push(Piece::C(cap / nf, name));
                     out.push(Piece::R(r / nf / 2.0));
                 }
@@ -284,7 +314,14 @@ impl<'a> Compiler<'a> {
 
     /// Builds a chain of `pieces` over `area` between `outer` and `inner`; returns the outside
     /// and inside surface nodes.
-    fn chain(&mut self, name: &str, pieces: &[Piece], area: f64, outer: End, inner: End) -> (NodeId, NodeId) {
+    fn chain(
+        &mut self,
+        name: &str,
+        pieces: &[Piece],
+        area: f64,
+        outer: End,
+        inner: End,
+    ) -> (NodeId, NodeId) {
         let outside = self.b.add_node(&format!("{name}.outside"), 0.0);
         match outer {
             End::Boundary(input, r, group) => self.b.link_boundary(outside, input, area / r, group),
@@ -331,7 +368,12 @@ pub fn compile(m: &ModelFile, file: &str) -> Result<House, ModelError> {
         b: NetworkBuilder::new(),
         materials: m.materials.iter().map(|x| (x.id.as_str(), x)).collect(),
         constructions: m.constructions.iter().map(|x| (x.id.as_str(), x)).collect(),
-        zone_index: m.zones.iter().enumerate().map(|(i, z)| (z.id.as_str(), i)).collect(),
+        zone_index: m
+            .zones
+            .iter()
+            .enumerate()
+            .map(|(i, z)| (z.id.as_str(), i))
+            .collect(),
         zone_air: Vec::new(),
         roles: Vec::new(),
         problems: Vec::new(),
@@ -341,7 +383,8 @@ pub fn compile(m: &ModelFile, file: &str) -> Result<House, ModelError> {
     };
     c.outdoor(); // always input 0
     for z in &m.zones {
-        let cap = AIR_HEAT_CAPACITY_J_M3K * z.volume_m3 + 1000.0 * z.furnishing_kj_m2k * z.floor_area_m2;
+        let cap =
+            AIR_HEAT_CAPACITY_J_M3K * z.volume_m3 + 1000.0 * z.furnishing_kj_m2k * z.floor_area_m2;
         let node = c.b.add_node(&format!("{}.air", z.id), cap);
         c.zone_air.push(node);
     }
@@ -357,23 +400,38 @@ pub fn compile(m: &ModelFile, file: &str) -> Result<House, ModelError> {
     // Gains: one input per zone that has any.
     for (zi, z) in m.zones.iter().enumerate() {
         if m.gains.iter().any(|g| g.zone == z.id) {
-            let inp = c.input(&format!("gains_{}_w", z.id), Hold::Step, InputRole::Gains { zone: zi });
+            let inp = c.input(
+                &format!("gains_{}_w", z.id),
+                Hold::Step,
+                InputRole::Gains { zone: zi },
+            );
             c.b.inject(c.zone_air[zi], inp, 1.0);
         }
     }
     let mut heater_inputs = Vec::new();
     for (hi, h) in m.heaters.iter().enumerate() {
-        let inp = c.input(&format!("heater_{}_w", h.id), Hold::Step, InputRole::Heater { heater: hi });
+        let inp = c.input(
+            &format!("heater_{}_w", h.id),
+            Hold::Step,
+            InputRole::Heater { heater: hi },
+        );
         heater_inputs.push(inp.0);
         let zi = c.zone_index[h.zone.as_str()];
-        let node = if h.into == "air" { c.zone_air[zi] } else { c.inside_surface[&h.into] };
+        let node = if h.into == "air" {
+            c.zone_air[zi]
+        } else {
+            c.inside_surface[&h.into]
+        };
         c.b.inject(node, inp, 1.0);
     }
     compile_raw(&mut c);
 
     let problems = std::mem::take(&mut c.problems);
     if !problems.is_empty() {
-        return Err(ModelError::Invalid { file: file.to_string(), problems });
+        return Err(ModelError::Invalid {
+            file: file.to_string(),
+            problems,
+        });
     }
     let network = c.b.build().map_err(|e| network_error(e, m, file))?;
     let zones = m
@@ -381,11 +439,16 @@ pub fn compile(m: &ModelFile, file: &str) -> Result<House, ModelError> {
         .iter()
         .map(|z| ZoneInfo {
             id: z.id.clone(),
-            air_state: network.state_index(&format!("{}.air", z.id)).expect("zone air has capacity"),
+            air_state: network
+                .state_index(&format!("{}.air", z.id))
+                .expect("zone air has capacity"),
             heated: z.heated,
             floor_area_m2: z.floor_area_m2,
             comfort: z.comfort.as_ref().map(|b| (b.min_c, b.max_c)),
-            design_indoor_c: z.design_indoor_c.or(z.comfort.as_ref().map(|b| b.min_c)).unwrap_or(20.0),
+            design_indoor_c: z
+                .design_indoor_c
+                .or(z.comfort.as_ref().map(|b| b.min_c))
+                .unwrap_or(20.0),
         })
         .collect();
     let constructions = construction_table(&c);
@@ -425,17 +488,29 @@ fn network_error(e: NetworkError, m: &ModelFile, file: &str) -> ModelError {
                 }
                 if !n.contains(".air") {
                     let owner = n.split('.').next().unwrap_or(&n).to_string();
-                    if out.iter().any(|p: &Problem| p.message.contains(&format!("`{owner}`"))) {
+                    if out
+                        .iter()
+                        .any(|p: &Problem| p.message.contains(&format!("`{owner}`")))
+                    {
                         continue;
                     }
-                    out.push(Problem { path: "$".into(), message: format!("element `{owner}` has no path to any boundary") });
+                    out.push(Problem {
+                        path: "$".into(),
+                        message: format!("element `{owner}` has no path to any boundary"),
+                    });
                 }
             }
             out
         }
-        other => vec![Problem { path: "$".into(), message: other.to_string() }],
+        other => vec![Problem {
+            path: "$".into(),
+            message: other.to_string(),
+        }],
     };
-    ModelError::Invalid { file: file.to_string(), problems }
+    ModelError::Invalid {
+        file: file.to_string(),
+        problems,
+    }
 }
 
 fn compile_opaque(c: &mut Compiler) {
@@ -445,8 +520,16 @@ fn compile_opaque(c: &mut Compiler) {
     let targets: Vec<&str> = m.heaters.iter().map(|h| h.into.as_str()).collect();
     let mut groups: Vec<Vec<&Opaque>> = Vec::new();
     for e in &m.opaque {
-        let mergeable = m.mesh.merge_alike && e.other_side != GROUND && !targets.contains(&e.id.as_str());
-        let key = |x: &Opaque| (x.construction.clone(), x.zone.clone(), x.other_side.clone(), opaque_kind(x));
+        let mergeable =
+            m.mesh.merge_alike && e.other_side != GROUND && !targets.contains(&e.id.as_str());
+        let key = |x: &Opaque| {
+            (
+                x.construction.clone(),
+                x.zone.clone(),
+                x.other_side.clone(),
+                opaque_kind(x),
+            )
+        };
         if mergeable {
             if let Some(g) = groups.iter_mut().find(|g| {
                 let f = g[0];
@@ -465,9 +548,15 @@ fn compile_opaque(c: &mut Compiler) {
         let con = c.constructions[first.construction.as_str()];
         let zi = c.zone_index[first.zone.as_str()];
         let area: f64 = g.iter().map(|e| e.area_m2).sum();
-        let name = if g.len() == 1 { first.id.clone() } else { format!("{}+{}", first.id, g.len() - 1) };
+        let name = if g.len() == 1 {
+            first.id.clone()
+        } else {
+            format!("{}+{}", first.id, g.len() - 1)
+        };
         let (mut pieces, r_layers, _) = c.pieces(con, dir);
-        let r_in = con.inside_resistance_m2k_w.unwrap_or(iso6946::inside_resistance(dir));
+        let r_in = con
+            .inside_resistance_m2k_w
+            .unwrap_or(iso6946::inside_resistance(dir));
         let group = group_of(kind);
         let outer;
         let u;
@@ -496,7 +585,14 @@ fn compile_opaque(c: &mut Compiler) {
             let nf = nodes as f64;
             for k in 0..nodes {
                 soil.push(Piece::R(r_soil_layer / nf / 2.0));
-                soil.push(Piece::C(cap / nf, if nodes == 1 { "soil".into() } else { format!("soil.{}", k + 1) }));
+                soil.push(Piece::C(
+                    cap / nf,
+                    if nodes == 1 {
+                        "soil".into()
+                    } else {
+                        format!("soil.{}", k + 1)
+                    },
+                ));
                 soil.push(Piece::R(r_soil_layer / nf / 2.0));
             }
             soil.append(&mut pieces);
@@ -504,12 +600,18 @@ fn compile_opaque(c: &mut Compiler) {
             let inp = c.boundary_input(GROUND).expect("ground");
             outer = End::Boundary(inp, split.remainder_m2k_w, "floor_ground");
         } else if let Some(&oz) = c.zone_index.get(side) {
-            let r_out = con.outside_resistance_m2k_w.unwrap_or(iso6946::inside_resistance(dir));
+            let r_out = con
+                .outside_resistance_m2k_w
+                .unwrap_or(iso6946::inside_resistance(dir));
             u = 1.0 / (r_in + r_layers + r_out);
             outer = End::Node(c.zone_air[oz], r_out);
         } else {
             let outdoor = side == OUTDOOR;
-            let default_out = if outdoor { iso6946::OUTSIDE_RESISTANCE } else { iso6946::inside_resistance(dir) };
+            let default_out = if outdoor {
+                iso6946::OUTSIDE_RESISTANCE
+            } else {
+                iso6946::inside_resistance(dir)
+            };
             let r_out = con.outside_resistance_m2k_w.unwrap_or(default_out);
             u = 1.0 / (r_in + r_layers + r_out);
             let inp = c.boundary_input(side).expect("validated boundary");
@@ -523,18 +625,24 @@ fn compile_opaque(c: &mut Compiler) {
             });
             continue;
         }
-        let (outside, inside) = c.chain(&name, &pieces, area, outer, End::Node(c.zone_air[zi], r_in));
+        let (outside, inside) =
+            c.chain(&name, &pieces, area, outer, End::Node(c.zone_air[zi], r_in));
         for e in &g {
             c.inside_surface.insert(e.id.clone(), inside);
             if side == OUTDOOR && e.solar_absorptance > 0.0 {
                 let inp = c.solar(e.tilt_deg, e.azimuth_deg);
                 c.b.inject(outside, inp, e.solar_absorptance * e.area_m2);
-                c.solar_targets.push((inp.0, group, e.solar_absorptance * e.area_m2));
+                c.solar_targets
+                    .push((inp.0, group, e.solar_absorptance * e.area_m2));
             }
             c.losses.push(ElementLoss {
                 id: e.id.clone(),
                 zone: zi,
-                group: if c.zone_index.contains_key(side) { "links" } else { group },
+                group: if c.zone_index.contains_key(side) {
+                    "links"
+                } else {
+                    group
+                },
                 other_side: side.to_string(),
                 area_m2: e.area_m2,
                 u_value_w_m2k: u,
@@ -551,7 +659,9 @@ fn compile_internal_mass(c: &mut Compiler) {
         let zi = c.zone_index[e.zone.as_str()];
         let dir = FlowDirection::Horizontal;
         let (pieces, _, _) = c.pieces(con, dir);
-        let r_in = con.inside_resistance_m2k_w.unwrap_or(iso6946::inside_resistance(dir));
+        let r_in = con
+            .inside_resistance_m2k_w
+            .unwrap_or(iso6946::inside_resistance(dir));
         let air = c.zone_air[zi];
         let outer = if e.both_faces {
             End::Node(air, con.outside_resistance_m2k_w.unwrap_or(r_in))
@@ -630,7 +740,11 @@ fn compile_airflows(c: &mut Compiler) {
         c.losses.push(ElementLoss {
             id: a.id.clone(),
             zone: zi,
-            group: if a.from == OUTDOOR { "ventilation" } else { "links" },
+            group: if a.from == OUTDOOR {
+                "ventilation"
+            } else {
+                "links"
+            },
             other_side: a.from.clone(),
             area_m2: 0.0,
             u_value_w_m2k: 0.0,
@@ -654,23 +768,40 @@ fn compile_raw(c: &mut Compiler) {
     };
     for l in &m.network.links {
         let group: &str = l.group.as_deref().unwrap_or("links");
-        let group: &'static str = GROUPS.iter().find(|g| **g == group).copied().unwrap_or("links");
+        let group: &'static str = GROUPS
+            .iter()
+            .find(|g| **g == group)
+            .copied()
+            .unwrap_or("links");
         let a = resolve(c, &l.from);
         let b = resolve(c, &l.to);
         match (a, b) {
             (Ok(x), Ok(y)) => c.b.link(x, y, l.conductance_w_k),
-            (Ok(x), Err(inp)) | (Err(inp), Ok(x)) => c.b.link_boundary(x, inp, l.conductance_w_k, group),
+            (Ok(x), Err(inp)) | (Err(inp), Ok(x)) => {
+                c.b.link_boundary(x, inp, l.conductance_w_k, group)
+            }
             (Err(_), Err(_)) => {}
         }
         if let (Some(zi), true) = (
-            c.zone_index.get(l.from.as_str()).or(c.zone_index.get(l.to.as_str())).copied(),
-            [&l.from, &l.to].iter().any(|s| s.as_str() == OUTDOOR || s.as_str() == GROUND || m.boundaries.iter().any(|b| &b.id == *s)),
+            c.zone_index
+                .get(l.from.as_str())
+                .or(c.zone_index.get(l.to.as_str()))
+                .copied(),
+            [&l.from, &l.to].iter().any(|s| {
+                s.as_str() == OUTDOOR
+                    || s.as_str() == GROUND
+                    || m.boundaries.iter().any(|b| &b.id == *s)
+            }),
         ) {
             c.losses.push(ElementLoss {
                 id: l.id.clone(),
                 zone: zi,
                 group,
-                other_side: if c.zone_index.contains_key(l.from.as_str()) { l.to.clone() } else { l.from.clone() },
+                other_side: if c.zone_index.contains_key(l.from.as_str()) {
+                    l.to.clone()
+                } else {
+                    l.from.clone()
+                },
                 area_m2: 0.0,
                 u_value_w_m2k: 0.0,
                 h_w_k: l.conductance_w_k,
@@ -678,7 +809,14 @@ fn compile_raw(c: &mut Compiler) {
         }
     }
     for h in &m.network.heat_inputs {
-        let inp = c.input(&format!("heat_{}_w", h.id), Hold::Step, InputRole::RawHeat { power_w: h.power_w, schedule: h.schedule.clone() });
+        let inp = c.input(
+            &format!("heat_{}_w", h.id),
+            Hold::Step,
+            InputRole::RawHeat {
+                power_w: h.power_w,
+                schedule: h.schedule.clone(),
+            },
+        );
         let node = match c.zone_index.get(h.node.as_str()) {
             Some(&zi) => c.zone_air[zi],
             None => c.b.node(&h.node).expect("validated node"),
@@ -695,7 +833,12 @@ fn construction_table(c: &Compiler) -> Vec<ConstructionU> {
             .opaque
             .iter()
             .filter(|e| e.construction == con.id)
-            .map(|e| (direction_of(opaque_kind(e)), e.other_side == OUTDOOR || e.other_side == GROUND))
+            .map(|e| {
+                (
+                    direction_of(opaque_kind(e)),
+                    e.other_side == OUTDOOR || e.other_side == GROUND,
+                )
+            })
             .collect();
         if dirs.is_empty() {
             dirs.push((FlowDirection::Horizontal, false));
@@ -704,10 +847,14 @@ fn construction_table(c: &Compiler) -> Vec<ConstructionU> {
         dirs.dedup_by_key(|d| d.0);
         for (dir, outside) in dirs {
             let (_, r, cap) = c.pieces(con, dir);
-            let r_in = con.inside_resistance_m2k_w.unwrap_or(iso6946::inside_resistance(dir));
-            let r_out = con
-                .outside_resistance_m2k_w
-                .unwrap_or(if outside { iso6946::OUTSIDE_RESISTANCE } else { iso6946::inside_resistance(dir) });
+            let r_in = con
+                .inside_resistance_m2k_w
+                .unwrap_or(iso6946::inside_resistance(dir));
+            let r_out = con.outside_resistance_m2k_w.unwrap_or(if outside {
+                iso6946::OUTSIDE_RESISTANCE
+            } else {
+                iso6946::inside_resistance(dir)
+            });
             out.push(ConstructionU {
                 id: con.id.clone(),
                 direction: direction_name(dir),

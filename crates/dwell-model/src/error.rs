@@ -52,7 +52,10 @@ pub enum ModelError {
 }
 
 fn list(p: &[Problem]) -> String {
-    p.iter().map(|p| format!("  {p}")).collect::<Vec<_>>().join("\n")
+    p.iter()
+        .map(|p| format!("  {p}"))
+        .collect::<Vec<_>>()
+        .join("\n")
 }
 
 impl ModelError {

@@ -210,7 +210,9 @@ pub struct Comfort {
 }
 
 /// How an opaque element is classed in heat-loss summaries.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Deserialize, Serialize, JsonSchema)]
+#[derive(
+    Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Deserialize, Serialize, JsonSchema,
+)]
 #[serde(rename_all = "snake_case")]
 pub enum OpaqueKind {
     /// A wall (tilt 60–120°).

@@ -30,7 +30,14 @@ pub const SOIL_LAYER_M: f64 = 0.5;
 /// `area_m2` floor area, `perimeter_m` exposed perimeter, `wall_m` wall thickness `w`,
 /// `r_floor` the floor construction's resistance (m²·K/W), `r_si` inside (0.17), `r_se` outside
 /// (0.04) surface resistances.
-pub fn slab_u_value(area_m2: f64, perimeter_m: f64, wall_m: f64, r_floor: f64, r_si: f64, r_se: f64) -> f64 {
+pub fn slab_u_value(
+    area_m2: f64,
+    perimeter_m: f64,
+    wall_m: f64,
+    r_floor: f64,
+    r_si: f64,
+    r_se: f64,
+) -> f64 {
     let lambda = SOIL_CONDUCTIVITY;
     let b = area_m2 / (0.5 * perimeter_m);
     let dt = wall_m + lambda * (r_si + r_floor + r_se);
@@ -54,10 +61,16 @@ pub struct SoilSplit {
 pub fn split_soil(r_soil: f64) -> SoilSplit {
     let full = SOIL_LAYER_M / SOIL_CONDUCTIVITY;
     if r_soil > 2.0 * full {
-        SoilSplit { layer_m: SOIL_LAYER_M, remainder_m2k_w: r_soil - full }
+        SoilSplit {
+            layer_m: SOIL_LAYER_M,
+            remainder_m2k_w: r_soil - full,
+        }
     } else {
         let half = 0.5 * r_soil;
-        SoilSplit { layer_m: half * SOIL_CONDUCTIVITY, remainder_m2k_w: half }
+        SoilSplit {
+            layer_m: half * SOIL_CONDUCTIVITY,
+            remainder_m2k_w: half,
+        }
     }
 }
 
@@ -74,7 +87,8 @@ mod tests {
         let u = slab_u_value(100.0, 40.0, 0.3, 0.075, 0.17, 0.04);
         let b = 5.0f64;
         let dt = 0.87f64;
-        let by_hand = 4.0 / (std::f64::consts::PI * b + dt) * (std::f64::consts::PI * b / dt + 1.0).ln();
+        let by_hand =
+            4.0 / (std::f64::consts::PI * b + dt) * (std::f64::consts::PI * b / dt + 1.0).ln();
         assert!((u - by_hand).abs() < 1e-12);
         assert!((u - 0.711).abs() < 0.001, "{u}");
         // Well insulated: d_t ≥ B' branch, 3 × 3 m with P = 12 → B' = 1.5, R_f = 5 → d_t = 10.72.

@@ -76,7 +76,12 @@ mod tests {
         let hor = surface_resistance_from_coefficients(2.5, 0.9, 20.0);
         let down = surface_resistance_from_coefficients(0.7, 0.9, 20.0);
         let out = surface_resistance_from_coefficients(4.0 + 4.0 * 4.0, 0.9, 0.0);
-        for (got, want, table) in [(up, 0.0986, 0.10), (hor, 0.1309, 0.13), (down, 0.1712, 0.17), (out, 0.0414, 0.04)] {
+        for (got, want, table) in [
+            (up, 0.0986, 0.10),
+            (hor, 0.1309, 0.13),
+            (down, 0.1712, 0.17),
+            (out, 0.0414, 0.04),
+        ] {
             assert!((got - want).abs() < 5e-4, "{got} vs {want}");
             assert!((got - table).abs() < 0.005, "{got} rounds to {table}");
         }
@@ -99,7 +104,10 @@ mod tests {
         ];
         for (d, dir, table) in cases {
             let r = air_layer_resistance(d, dir);
-            assert!((r - table).abs() <= 0.005 + 1e-12, "{d} m {dir:?}: {r} vs table {table}");
+            assert!(
+                (r - table).abs() <= 0.005 + 1e-12,
+                "{d} m {dir:?}: {r} vs table {table}"
+            );
         }
     }
 }

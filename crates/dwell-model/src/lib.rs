@@ -36,8 +36,8 @@ pub mod summary;
 mod validate;
 
 pub use compile::{
-    airflow_m3_s, compile, layer_nodes, opaque_kind, ConstructionU, ElementLoss, House, InputRole, ZoneInfo,
-    AIR_HEAT_CAPACITY_J_M3K, GROUPS,
+    airflow_m3_s, compile, layer_nodes, opaque_kind, ConstructionU, ElementLoss, House, InputRole,
+    ZoneInfo, AIR_HEAT_CAPACITY_J_M3K, GROUPS,
 };
 pub use error::{suggest, ModelError, Problem};
 pub use file::ModelFile;

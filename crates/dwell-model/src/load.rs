@@ -9,7 +9,10 @@ use crate::validate;
 /// Reads, parses and validates a model file.
 pub fn read_model(path: &Path) -> Result<ModelFile, ModelError> {
     let file = path.display().to_string();
-    let text = std::fs::read_to_string(path).map_err(|source| ModelError::Io { file: file.clone(), source })?;
+    let text = std::fs::read_to_string(path).map_err(|source| ModelError::Io {
+        file: file.clone(),
+        source,
+    })?;
     parse_model(&text, &file)
 }
 
@@ -29,13 +32,19 @@ pub fn from_value(value: serde_json::Value, file: &str) -> Result<ModelFile, Mod
     let model: ModelFile = serde_path_to_error::deserialize(value).map_err(|e| {
         let path = json_path(&e.path().to_string());
         let message = explain(&strip_position(&e.inner().to_string()));
-        ModelError::Invalid { file: file.to_string(), problems: vec![Problem { path, message }] }
+        ModelError::Invalid {
+            file: file.to_string(),
+            problems: vec![Problem { path, message }],
+        }
     })?;
     let problems = validate::validate(&model);
     if problems.is_empty() {
         Ok(model)
     } else {
-        Err(ModelError::Invalid { file: file.to_string(), problems })
+        Err(ModelError::Invalid {
+            file: file.to_string(),
+            problems,
+        })
     }
 }
 
@@ -87,7 +96,11 @@ mod tests {
         let e = parse_model(text, "m.json").unwrap_err();
         let p = &e.problems()[0];
         assert_eq!(p.path, "$.materials[0].specific_heat_j_kg_k");
-        assert!(p.message.contains("did you mean `specific_heat_j_kgk`?"), "{}", p.message);
+        assert!(
+            p.message.contains("did you mean `specific_heat_j_kgk`?"),
+            "{}",
+            p.message
+        );
     }
 
     #[test]
@@ -101,8 +114,16 @@ mod tests {
 
     #[test]
     fn wrong_types_name_the_path() {
-        let e = parse_model(r#"{"zones": [{"id": "a", "floor_area_m2": "big", "volume_m3": 3}]}"#, "m.json").unwrap_err();
+        let e = parse_model(
+            r#"{"zones": [{"id": "a", "floor_area_m2": "big", "volume_m3": 3}]}"#,
+            "m.json",
+        )
+        .unwrap_err();
         assert_eq!(e.problems()[0].path, "$.zones[0].floor_area_m2");
-        assert!(e.problems()[0].message.contains("invalid type"), "{}", e.problems()[0].message);
+        assert!(
+            e.problems()[0].message.contains("invalid type"),
+            "{}",
+            e.problems()[0].message
+        );
     }
 }

@@ -20,11 +20,19 @@ pub struct WeeklySchedule {
 
 /// Parses `HH:MM` (00:00 … 24:00) into minutes after midnight.
 pub fn parse_clock(s: &str) -> Result<u32, String> {
-    let (h, m) = s.split_once(':').ok_or_else(|| format!("`{s}` is not a time of day `HH:MM`"))?;
-    let h: u32 = h.parse().map_err(|_| format!("`{s}` is not a time of day `HH:MM`"))?;
-    let m: u32 = m.parse().map_err(|_| format!("`{s}` is not a time of day `HH:MM`"))?;
+    let (h, m) = s
+        .split_once(':')
+        .ok_or_else(|| format!("`{s}` is not a time of day `HH:MM`"))?;
+    let h: u32 = h
+        .parse()
+        .map_err(|_| format!("`{s}` is not a time of day `HH:MM`"))?;
+    let m: u32 = m
+        .parse()
+        .map_err(|_| format!("`{s}` is not a time of day `HH:MM`"))?;
     if m >= 60 || h > 24 || (h == 24 && m > 0) {
-        return Err(format!("`{s}` is not a time of day between 00:00 and 24:00"));
+        return Err(format!(
+            "`{s}` is not a time of day between 00:00 and 24:00"
+        ));
     }
     Ok(h * 60 + m)
 }
@@ -55,7 +63,11 @@ pub fn parse_days(s: &str) -> Result<u8, String> {
         "weekdays" => 31,
         "weekend" => 96,
         "daily" => 127,
-        _ => return Err(format!("`{s}` is not a day; use mon, tue, wed, thu, fri, sat, sun, weekdays, weekend or daily")),
+        _ => {
+            return Err(format!(
+            "`{s}` is not a day; use mon, tue, wed, thu, fri, sat, sun, weekdays, weekend or daily"
+        ))
+        }
     })
 }
 
@@ -73,23 +85,34 @@ impl WeeklySchedule {
                 }
             }
             if p.days.is_empty() {
-                errors.push((format!("periods[{i}].days"), "no days given; use e.g. [\"daily\"]".into()));
+                errors.push((
+                    format!("periods[{i}].days"),
+                    "no days given; use e.g. [\"daily\"]".into(),
+                ));
             }
-            let from = parse_clock(&p.from).map_err(|e| errors.push((format!("periods[{i}].from"), e)));
+            let from =
+                parse_clock(&p.from).map_err(|e| errors.push((format!("periods[{i}].from"), e)));
             let to = parse_clock(&p.to).map_err(|e| errors.push((format!("periods[{i}].to"), e)));
             if !p.value.is_finite() {
-                errors.push((format!("periods[{i}].value"), "must be a finite number".into()));
+                errors.push((
+                    format!("periods[{i}].value"),
+                    "must be a finite number".into(),
+                ));
             }
             if let (Ok(f), Ok(t)) = (from, to) {
                 if f == t {
-                    errors.push((format!("periods[{i}].to"), "the period is empty (from = to)".into()));
+                    errors.push((
+                        format!("periods[{i}].to"),
+                        "the period is empty (from = to)".into(),
+                    ));
                 }
                 periods.push((mask, f, t, p.value));
             }
         }
         let mut away = Vec::new();
         for (i, a) in s.away.iter().enumerate() {
-            let f = parse_month_day(&a.from).map_err(|e| errors.push((format!("away[{i}].from"), e)));
+            let f =
+                parse_month_day(&a.from).map_err(|e| errors.push((format!("away[{i}].from"), e)));
             let t = parse_month_day(&a.to).map_err(|e| errors.push((format!("away[{i}].to"), e)));
             if let (Ok(f), Ok(t)) = (f, t) {
                 away.push((f, t, a.value));
@@ -99,7 +122,11 @@ impl WeeklySchedule {
             errors.push(("base".into(), "must be a finite number".into()));
         }
         if errors.is_empty() {
-            Ok(WeeklySchedule { base: s.base, periods, away })
+            Ok(WeeklySchedule {
+                base: s.base,
+                periods,
+                away,
+            })
         } else {
             Err(errors)
         }
@@ -107,14 +134,22 @@ impl WeeklySchedule {
 
     /// A schedule that is `value` all the time.
     pub fn constant(value: f64) -> Self {
-        WeeklySchedule { base: value, periods: vec![], away: vec![] }
+        WeeklySchedule {
+            base: value,
+            periods: vec![],
+            away: vec![],
+        }
     }
 
     /// The value at a local standard time.
     pub fn value_at(&self, t: NaiveDateTime) -> f64 {
         let key = t.month() * 100 + t.day();
         for &(f, to, v) in self.away.iter().rev() {
-            let inside = if f <= to { key >= f && key <= to } else { key >= f || key <= to };
+            let inside = if f <= to {
+                key >= f && key <= to
+            } else {
+                key >= f || key <= to
+            };
             if inside {
                 return v;
             }
@@ -147,7 +182,10 @@ mod tests {
     use chrono::NaiveDate;
 
     fn at(y: i32, m: u32, d: u32, h: u32, min: u32) -> NaiveDateTime {
-        NaiveDate::from_ymd_opt(y, m, d).unwrap().and_hms_opt(h, min, 0).unwrap()
+        NaiveDate::from_ymd_opt(y, m, d)
+            .unwrap()
+            .and_hms_opt(h, min, 0)
+            .unwrap()
     }
 
     #[test]
@@ -156,11 +194,30 @@ mod tests {
             id: "s".into(),
             base: 16.0,
             periods: vec![
-                Period { days: vec!["weekdays".into()], from: "06:30".into(), to: "22:00".into(), value: 20.0 },
-                Period { days: vec!["weekend".into()], from: "08:00".into(), to: "23:00".into(), value: 21.0 },
-                Period { days: vec!["fri".into()], from: "23:00".into(), to: "01:00".into(), value: 19.0 },
+                Period {
+                    days: vec!["weekdays".into()],
+                    from: "06:30".into(),
+                    to: "22:00".into(),
+                    value: 20.0,
+                },
+                Period {
+                    days: vec!["weekend".into()],
+                    from: "08:00".into(),
+                    to: "23:00".into(),
+                    value: 21.0,
+                },
+                Period {
+                    days: vec!["fri".into()],
+                    from: "23:00".into(),
+                    to: "01:00".into(),
+                    value: 19.0,
+                },
             ],
-            away: vec![Away { from: "12-30".into(), to: "01-02".into(), value: 12.0 }],
+            away: vec![Away {
+                from: "12-30".into(),
+                to: "01-02".into(),
+                value: 12.0,
+            }],
         };
         let w = WeeklySchedule::new(&s).unwrap();
         // 2025-01-06 is a Monday.
@@ -181,11 +238,23 @@ mod tests {
         let s = Schedule {
             id: "s".into(),
             base: 1.0,
-            periods: vec![Period { days: vec!["monday".into()], from: "25:00".into(), to: "06:00".into(), value: 0.0 }],
-            away: vec![Away { from: "02-30".into(), to: "03-01".into(), value: 0.0 }],
+            periods: vec![Period {
+                days: vec!["monday".into()],
+                from: "25:00".into(),
+                to: "06:00".into(),
+                value: 0.0,
+            }],
+            away: vec![Away {
+                from: "02-30".into(),
+                to: "03-01".into(),
+                value: 0.0,
+            }],
         };
         let e = WeeklySchedule::new(&s).unwrap_err();
         let places: Vec<&str> = e.iter().map(|(p, _)| p.as_str()).collect();
-        assert_eq!(places, vec!["periods[0].days[0]", "periods[0].from", "away[0].from"]);
+        assert_eq!(
+            places,
+            vec!["periods[0].days[0]", "periods[0].from", "away[0].from"]
+        );
     }
 }

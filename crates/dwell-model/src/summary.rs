@@ -78,7 +78,12 @@ pub fn check_summary(house: &House) -> CheckSummary {
     let mut zones: Vec<ZoneLoss> = house
         .zones
         .iter()
-        .map(|z| ZoneLoss { zone: z.id.clone(), heated: z.heated, floor_area_m2: z.floor_area_m2, ..Default::default() })
+        .map(|z| ZoneLoss {
+            zone: z.id.clone(),
+            heated: z.heated,
+            floor_area_m2: z.floor_area_m2,
+            ..Default::default()
+        })
         .collect();
     for l in &house.losses {
         if let Some(other) = house.zones.iter().position(|x| x.id == l.other_side) {
@@ -110,7 +115,11 @@ pub fn check_summary(house: &House) -> CheckSummary {
             }
         }
     }
-    let mut total = ZoneLoss { zone: "total".into(), heated: true, ..Default::default() };
+    let mut total = ZoneLoss {
+        zone: "total".into(),
+        heated: true,
+        ..Default::default()
+    };
     for z in &zones {
         total.floor_area_m2 += z.floor_area_m2;
         total.walls_w_k += z.walls_w_k;
@@ -160,11 +169,18 @@ pub fn zone_steady_conductance(house: &House) -> Option<Vec<f64>> {
     }
     if !free.is_empty() {
         let kff = nalgebra::DMatrix::from_fn(free.len(), free.len(), |a, b| k[(free[a], free[b])]);
-        let rhs = nalgebra::DVector::from_fn(free.len(), |a, _| -fixed.iter().map(|&j| k[(free[a], j)]).sum::<f64>());
+        let rhs = nalgebra::DVector::from_fn(free.len(), |a, _| {
+            -fixed.iter().map(|&j| k[(free[a], j)]).sum::<f64>()
+        });
         let sol = kff.lu().solve(&rhs)?;
         for (a, &i) in free.iter().enumerate() {
             x[i] = sol[a];
         }
     }
-    Some(fixed.iter().map(|&i| (0..n).map(|j| k[(i, j)] * x[j]).sum()).collect())
+    Some(
+        fixed
+            .iter()
+            .map(|&i| (0..n).map(|j| k[(i, j)] * x[j]).sum())
+            .collect(),
+    )
 }

@@ -23,7 +23,12 @@ impl Z {
     fn mul(self, o: Z) -> Z {
         let a = self.0;
         let b = o.0;
-        Z([a[0] * b[0] + a[1] * b[2], a[0] * b[1] + a[1] * b[3], a[2] * b[0] + a[3] * b[2], a[2] * b[1] + a[3] * b[3]])
+        Z([
+            a[0] * b[0] + a[1] * b[2],
+            a[0] * b[1] + a[1] * b[3],
+            a[2] * b[0] + a[3] * b[2],
+            a[2] * b[1] + a[3] * b[3],
+        ])
     }
 }
 
@@ -32,12 +37,22 @@ fn layer(d: f64, lambda: f64, rho: f64, c: f64) -> Z {
     let delta = (lambda * PERIOD_S / (std::f64::consts::PI * rho * c)).sqrt();
     let one_i = C::new(1.0, 1.0);
     let arg = one_i * (d / delta);
-    Z([arg.cosh(), -(C::new(delta / lambda, 0.0) / one_i) * arg.sinh(), -(one_i * (lambda / delta)) * arg.sinh(), arg.cosh()])
+    Z([
+        arg.cosh(),
+        -(C::new(delta / lambda, 0.0) / one_i) * arg.sinh(),
+        -(one_i * (lambda / delta)) * arg.sinh(),
+        arg.cosh(),
+    ])
 }
 
 /// A bare resistance (surface film, air layer), ISO 13786 §6.3.
 fn resistance(r: f64) -> Z {
-    Z([C::new(1.0, 0.0), C::new(-r, 0.0), C::new(0.0, 0.0), C::new(1.0, 0.0)])
+    Z([
+        C::new(1.0, 0.0),
+        C::new(-r, 0.0),
+        C::new(0.0, 0.0),
+        C::new(1.0, 0.0),
+    ])
 }
 
 /// Layers are (d, λ, ρ, c) or a resistance, listed outside first like a dwell construction.
@@ -62,7 +77,11 @@ fn element(layers: &[L], r_si: f64, r_se: f64) -> Z {
 /// (Y₁₂ = −1/Z₁₂, Y₁₁ = −Z₁₁/Z₁₂, κ₁ = T/2π·|(Z₁₁ − 1)/Z₁₂|).
 fn iso_values(z: Z) -> (C, C, f64) {
     let [z11, z12, _, _] = z.0;
-    (-C::new(1.0, 0.0) / z12, -z11 / z12, PERIOD_S / (2.0 * std::f64::consts::PI) * ((z11 - C::new(1.0, 0.0)) / z12).norm())
+    (
+        -C::new(1.0, 0.0) / z12,
+        -z11 / z12,
+        PERIOD_S / (2.0 * std::f64::consts::PI) * ((z11 - C::new(1.0, 0.0)) / z12).norm(),
+    )
 }
 
 #[test]
@@ -75,7 +94,11 @@ fn transfer_matrix_reproduces_the_reference_values() {
     let (y12, _, k1) = iso_values(z);
     let u: f64 = 1.0 / (0.13 + 0.1 + 0.04);
     assert!((u - 3.704).abs() < 5e-4);
-    assert!((y12.norm() / u - 0.5273).abs() < 5e-5, "f {}", y12.norm() / u);
+    assert!(
+        (y12.norm() / u - 0.5273).abs() < 5e-5,
+        "f {}",
+        y12.norm() / u
+    );
     let lag_h = -y12.arg() * PERIOD_S / (2.0 * std::f64::consts::PI) / 3600.0;
     assert!((lag_h - 5.475).abs() < 5e-4, "lag {lag_h}");
     assert!((k1 / 1000.0 - 86.42).abs() < 5e-3, "κ₁ {k1}");
@@ -105,7 +128,11 @@ fn dwell_values(layers_json: &str, materials_json: &str) -> (C, C, f64, usize) {
     let w: Vec<usize> = (0..n).filter(|&i| i != air).collect();
     let omega = 2.0 * std::f64::consts::PI / PERIOD_S;
     let a = DMatrix::<C>::from_fn(w.len(), w.len(), |i, j| {
-        let diag = if i == j { C::new(0.0, omega * sys.capacitance[w[i]]) } else { C::new(0.0, 0.0) };
+        let diag = if i == j {
+            C::new(0.0, omega * sys.capacitance[w[i]])
+        } else {
+            C::new(0.0, 0.0)
+        };
         diag + C::new(sys.conductance[(w[i], w[j])], 0.0)
     });
     let lu = a.lu();
@@ -113,11 +140,20 @@ fn dwell_values(layers_json: &str, materials_json: &str) -> (C, C, f64, usize) {
     // θ₂ = 1 outside, θ₁ = 0 inside: heat into the room (ISO's Y₁₂).
     let rhs = DVector::<C>::from_fn(w.len(), |i, _| C::new(sys.input[(w[i], out)], 0.0));
     let x = lu.solve(&rhs).unwrap();
-    let into_room: C = w.iter().enumerate().map(|(k, &j)| x[k] * (-sys.conductance[(air, j)])).sum::<C>() + C::new(sys.input[(air, out)], 0.0);
+    let into_room: C = w
+        .iter()
+        .enumerate()
+        .map(|(k, &j)| x[k] * (-sys.conductance[(air, j)]))
+        .sum::<C>()
+        + C::new(sys.input[(air, out)], 0.0);
     // θ₁ = 1 inside, θ₂ = 0: heat from the room into the element (Y₁₁).
     let rhs = DVector::<C>::from_fn(w.len(), |i, _| C::new(-sys.conductance[(w[i], air)], 0.0));
     let x = lu.solve(&rhs).unwrap();
-    let into_wall: C = C::new(sys.conductance[(air, air)], 0.0) + w.iter().enumerate().map(|(k, &j)| x[k] * sys.conductance[(air, j)]).sum::<C>();
+    let into_wall: C = C::new(sys.conductance[(air, air)], 0.0)
+        + w.iter()
+            .enumerate()
+            .map(|(k, &j)| x[k] * sys.conductance[(air, j)])
+            .sum::<C>();
     let k1 = PERIOD_S / (2.0 * std::f64::consts::PI) * (into_wall - into_room).norm();
     (into_room, into_wall, k1, n - 1)
 }
@@ -136,8 +172,17 @@ const WALLS: [Wall; 3] = [
         materials: r#"[{"id": "softwood", "conductivity_w_mk": 0.13, "density_kg_m3": 500, "specific_heat_j_kgk": 1600},
                       {"id": "wool", "conductivity_w_mk": 0.037, "density_kg_m3": 30, "specific_heat_j_kgk": 1030},
                       {"id": "board", "conductivity_w_mk": 0.21, "density_kg_m3": 700, "specific_heat_j_kgk": 1000}]"#,
-        layers: &[(Some("softwood"), 0.022), (None, 0.18), (Some("wool"), 0.14), (Some("board"), 0.0125)],
-        props: &[("softwood", 0.13, 500.0, 1600.0), ("wool", 0.037, 30.0, 1030.0), ("board", 0.21, 700.0, 1000.0)],
+        layers: &[
+            (Some("softwood"), 0.022),
+            (None, 0.18),
+            (Some("wool"), 0.14),
+            (Some("board"), 0.0125),
+        ],
+        props: &[
+            ("softwood", 0.13, 500.0, 1600.0),
+            ("wool", 0.037, 30.0, 1030.0),
+            ("board", 0.21, 700.0, 1000.0),
+        ],
     },
     Wall {
         name: "insulated masonry",
@@ -145,8 +190,18 @@ const WALLS: [Wall; 3] = [
                       {"id": "wool", "conductivity_w_mk": 0.035, "density_kg_m3": 30, "specific_heat_j_kgk": 1030},
                       {"id": "block", "conductivity_w_mk": 0.9, "density_kg_m3": 1800, "specific_heat_j_kgk": 1000},
                       {"id": "plaster", "conductivity_w_mk": 0.4, "density_kg_m3": 1000, "specific_heat_j_kgk": 1000}]"#,
-        layers: &[(Some("brick"), 0.102), (Some("wool"), 0.1), (Some("block"), 0.14), (Some("plaster"), 0.013)],
-        props: &[("brick", 0.77, 1700.0, 800.0), ("wool", 0.035, 30.0, 1030.0), ("block", 0.9, 1800.0, 1000.0), ("plaster", 0.4, 1000.0, 1000.0)],
+        layers: &[
+            (Some("brick"), 0.102),
+            (Some("wool"), 0.1),
+            (Some("block"), 0.14),
+            (Some("plaster"), 0.013),
+        ],
+        props: &[
+            ("brick", 0.77, 1700.0, 800.0),
+            ("wool", 0.035, 30.0, 1030.0),
+            ("block", 0.9, 1800.0, 1000.0),
+            ("plaster", 0.4, 1000.0, 1000.0),
+        ],
     },
     Wall {
         name: "heavy concrete",
@@ -161,7 +216,9 @@ fn layers_json(w: &Wall, nodes: Option<u32>) -> String {
         .layers
         .iter()
         .map(|(mat, v)| match (mat, nodes) {
-            (Some(m), Some(n)) => format!(r#"{{"material": "{m}", "thickness_m": {v}, "nodes": {n}}}"#),
+            (Some(m), Some(n)) => {
+                format!(r#"{{"material": "{m}", "thickness_m": {v}, "nodes": {n}}}"#)
+            }
             (Some(m), None) => format!(r#"{{"material": "{m}", "thickness_m": {v}}}"#),
             (None, _) => format!(r#"{{"resistance_m2k_w": {v}}}"#),
         })
@@ -181,10 +238,13 @@ fn reference(w: &Wall) -> (C, C, f64, f64) {
             None => L::R(*v),
         })
         .collect();
-    let r: f64 = ls.iter().map(|l| match *l {
-        L::M(d, la, _, _) => d / la,
-        L::R(r) => r,
-    }).sum();
+    let r: f64 = ls
+        .iter()
+        .map(|l| match *l {
+            L::M(d, la, _, _) => d / la,
+            L::R(r) => r,
+        })
+        .sum();
     let (y12, y11, k1) = iso_values(element(&ls, 0.13, 0.04));
     (y12, y11, k1, 1.0 / (0.13 + r + 0.04))
 }
@@ -203,10 +263,18 @@ fn rc_network_matches_iso13786_and_converges_with_nodes() {
             let (d12, _, _, _) = dwell_values(&layers_json(w, Some(n)), w.materials);
             let err = (d12.norm() / u - f_ref).abs() / f_ref;
             // the error falls as nodes per layer rise (second-order in the sublayer thickness)
-            assert!(err <= last_err * 1.0001 + 1e-12, "{}: {n} nodes error {err} > {last_err}", w.name);
+            assert!(
+                err <= last_err * 1.0001 + 1e-12,
+                "{}: {n} nodes error {err} > {last_err}",
+                w.name
+            );
             last_err = err;
         }
-        assert!(last_err < 0.005, "{}: 16 nodes per layer still {last_err}", w.name);
+        assert!(
+            last_err < 0.005,
+            "{}: 16 nodes per layer still {last_err}",
+            w.name
+        );
         // the default node rule: decrement factor within 2 %, time shift within 10 minutes
         // (issue 8), κ₁ within 2 %
         let (d12, d11, dk1, states) = dwell_values(&layers_json(w, None), w.materials);
@@ -236,8 +304,11 @@ fn rc_network_matches_iso13786_and_converges_with_nodes() {
             },
         );
         assert!(f_err < 0.02, "{}: decrement factor {f} vs {f_ref}", w.name);
-        assert!(shift_err_min < 10.0, "{}: time shift off by {shift_err_min} min", w.name);
+        assert!(
+            shift_err_min < 10.0,
+            "{}: time shift off by {shift_err_min} min",
+            w.name
+        );
         assert!(k_err < 0.02, "{}: κ₁ {dk1} vs {k1}", w.name);
     }
 }
-

@@ -51,7 +51,13 @@ fn iso6946_default_surface_resistances_are_applied_by_direction() {
         {"id": "f", "construction": "c", "zone": "z", "other_side": "outdoor", "area_m2": 10, "tilt_deg": 180}]
     }"#,
     );
-    let by_dir = |d: &str| h.constructions.iter().find(|c| c.direction == d).unwrap().u_value_w_m2k;
+    let by_dir = |d: &str| {
+        h.constructions
+            .iter()
+            .find(|c| c.direction == d)
+            .unwrap()
+            .u_value_w_m2k
+    };
     assert!((by_dir("horizontal") - 1.0 / 0.27).abs() < 1e-12);
     assert!((by_dir("up") - 1.0 / 0.24).abs() < 1e-12);
     assert!((by_dir("down") - 1.0 / 0.31).abs() < 1e-12);
@@ -92,14 +98,21 @@ fn single_zone_box_steady_heat_flow_equals_sum_of_ua_plus_ventilation() {
     let h = house(BOX);
     let want = box_h_by_hand();
     let got = zone_steady_conductance(&h).unwrap()[0];
-    record("model", Check {
-        area: "Steady state",
-        what: "single-zone box: network heat-loss coefficient vs Σ U·A + H_ve",
-        source: "hand calculation with ISO 6946 surface resistances, ρc_p 1200 J/m³K (ISO 13790)",
-        tolerance: "1e-9 relative",
-        obtained: format!("{got:.6} vs {want:.6} W/K ({:.1e})", ((got - want) / want).abs()),
-        pass: ((got - want) / want).abs() < 1e-9,
-    });
+    record(
+        "model",
+        Check {
+            area: "Steady state",
+            what: "single-zone box: network heat-loss coefficient vs Σ U·A + H_ve",
+            source:
+                "hand calculation with ISO 6946 surface resistances, ρc_p 1200 J/m³K (ISO 13790)",
+            tolerance: "1e-9 relative",
+            obtained: format!(
+                "{got:.6} vs {want:.6} W/K ({:.1e})",
+                ((got - want) / want).abs()
+            ),
+            pass: ((got - want) / want).abs() < 1e-9,
+        },
+    );
     assert!(((got - want) / want).abs() < 1e-9, "{got} vs {want}");
     // Also through a steady solve: 1000 W of heat at 0 °C outside raises the air by 1000/H.
     let net = &h.network;
@@ -123,11 +136,20 @@ fn merging_alike_elements_does_not_change_zone_dynamics() {
     // compare the air response to a step in outdoor temperature after 6 h via the steady state
     // and the slowest time constant.
     let merged = house(BOX);
-    let unmerged = house(&BOX.replacen("\"materials\"", "\"mesh\": {\"merge_alike\": false}, \"materials\"", 1));
+    let unmerged = house(&BOX.replacen(
+        "\"materials\"",
+        "\"mesh\": {\"merge_alike\": false}, \"materials\"",
+        1,
+    ));
     assert!(unmerged.network.states.len() > merged.network.states.len());
     let tm = merged.network.time_constants_s();
     let tu = unmerged.network.time_constants_s();
-    assert!((tm[0] - tu[0]).abs() < 1e-9 * tu[0], "{} vs {}", tm[0], tu[0]);
+    assert!(
+        (tm[0] - tu[0]).abs() < 1e-9 * tu[0],
+        "{} vs {}",
+        tm[0],
+        tu[0]
+    );
     let hm = zone_steady_conductance(&merged).unwrap()[0];
     let hu = zone_steady_conductance(&unmerged).unwrap()[0];
     assert!((hm - hu).abs() < 1e-9 * hu);
@@ -156,7 +178,10 @@ fn a_finely_meshed_slab_keeps_its_lumped_capacitance() {
             .sum();
         let want = 2400.0 * 1000.0 * 0.004 * 7.5;
         assert_eq!(net.states.len(), nodes + 1);
-        assert!((slab - want).abs() <= 1e-12 * want, "{nodes} nodes: {slab} vs {want}");
+        assert!(
+            (slab - want).abs() <= 1e-12 * want,
+            "{nodes} nodes: {slab} vs {want}"
+        );
     }
 }
 
@@ -193,9 +218,15 @@ fn raw_network_and_elements_compile_to_the_same_network() {
     // states are [z.air, wall] in both (zone air first)
     for i in 0..2 {
         for j in 0..2 {
-            assert!((a.conductance[(i, j)] - b.conductance[(i, j)]).abs() < 1e-12 * 50.0, "K[{i}{j}]");
+            assert!(
+                (a.conductance[(i, j)] - b.conductance[(i, j)]).abs() < 1e-12 * 50.0,
+                "K[{i}{j}]"
+            );
         }
-        assert!((a.input[(i, 0)] - b.input[(i, 0)]).abs() < 1e-12 * 50.0, "U[{i}0]");
+        assert!(
+            (a.input[(i, 0)] - b.input[(i, 0)]).abs() < 1e-12 * 50.0,
+            "U[{i}0]"
+        );
     }
 }
 
@@ -216,15 +247,22 @@ fn ground_floor_steady_u_equals_iso13370() {
     let dt = 0.87f64;
     let u = 4.0 / (std::f64::consts::PI * b + dt) * (std::f64::consts::PI * b / dt + 1.0).ln();
     let got = zone_steady_conductance(&h).unwrap()[0];
-    record("model", Check {
-        area: "Ground floors (ISO 13370)",
-        what: "10 × 10 m uninsulated slab, P 40 m: network steady conductance vs U·A",
-        source: "ISO 13370:2017 §8.1 slab-on-ground formula (from memory), hand arithmetic",
-        tolerance: "1e-9 relative",
-        obtained: format!("{got:.4} vs {:.4} W/K", 100.0 * u),
-        pass: (got - 100.0 * u).abs() < 1e-9 * got,
-    });
-    assert!((got - 100.0 * u).abs() < 1e-9 * got, "{got} vs {}", 100.0 * u);
+    record(
+        "model",
+        Check {
+            area: "Ground floors (ISO 13370)",
+            what: "10 × 10 m uninsulated slab, P 40 m: network steady conductance vs U·A",
+            source: "ISO 13370:2017 §8.1 slab-on-ground formula (from memory), hand arithmetic",
+            tolerance: "1e-9 relative",
+            obtained: format!("{got:.4} vs {:.4} W/K", 100.0 * u),
+            pass: (got - 100.0 * u).abs() < 1e-9 * got,
+        },
+    );
+    assert!(
+        (got - 100.0 * u).abs() < 1e-9 * got,
+        "{got} vs {}",
+        100.0 * u
+    );
 }
 
 #[test]
@@ -241,15 +279,37 @@ fn example_houses_have_plausible_time_constants_and_losses() {
     let brick = load("brickworth-house.json");
     let sun = load("sunbank-bungalow.json");
     let tau_h = |h: &House| h.network.time_constants_s()[0] / 3600.0;
-    assert!((5.0..40.0).contains(&tau_h(&cabin)), "cabin {}", tau_h(&cabin));
-    assert!((40.0..200.0).contains(&tau_h(&brick)), "brick {}", tau_h(&brick));
+    assert!(
+        (5.0..40.0).contains(&tau_h(&cabin)),
+        "cabin {}",
+        tau_h(&cabin)
+    );
+    assert!(
+        (40.0..200.0).contains(&tau_h(&brick)),
+        "brick {}",
+        tau_h(&brick)
+    );
     assert!(tau_h(&sun) > 90.0, "bungalow {}", tau_h(&sun));
     let per_m2 = |h: &House| {
         let s = dwell_model::summary::check_summary(h);
-        let heated: f64 = s.zones.iter().filter(|z| z.heated).map(|z| z.total_w_k).sum();
-        let area: f64 = s.zones.iter().filter(|z| z.heated).map(|z| z.floor_area_m2).sum();
+        let heated: f64 = s
+            .zones
+            .iter()
+            .filter(|z| z.heated)
+            .map(|z| z.total_w_k)
+            .sum();
+        let area: f64 = s
+            .zones
+            .iter()
+            .filter(|z| z.heated)
+            .map(|z| z.floor_area_m2)
+            .sum();
         24.0 * heated / area
     };
-    assert!((100.0..160.0).contains(&per_m2(&brick)), "brick {}", per_m2(&brick));
+    assert!(
+        (100.0..160.0).contains(&per_m2(&brick)),
+        "brick {}",
+        per_m2(&brick)
+    );
     assert!(per_m2(&sun) < 30.0, "bungalow {}", per_m2(&sun));
 }

@@ -71,7 +71,10 @@ impl NetworkBuilder {
         }
         let id = self.nodes.len();
         self.names.insert(unique.clone(), id);
-        self.nodes.push(NodeSpec { name: unique, capacitance: capacitance_j_k });
+        self.nodes.push(NodeSpec {
+            name: unique,
+            capacitance: capacitance_j_k,
+        });
         NodeId(id)
     }
 
@@ -101,7 +104,10 @@ impl NetworkBuilder {
         if let Some(i) = self.inputs.iter().position(|x| x.name == name) {
             return InputId(i);
         }
-        self.inputs.push(InputInfo { name: name.to_string(), hold });
+        self.inputs.push(InputInfo {
+            name: name.to_string(),
+            hold,
+        });
         InputId(self.inputs.len() - 1)
     }
 
@@ -112,12 +118,22 @@ impl NetworkBuilder {
 
     /// Joins two nodes with a conductance (W/K). Parallel links add up.
     pub fn link(&mut self, a: NodeId, b: NodeId, conductance_w_k: f64) {
-        self.links.push(LinkSpec { a: a.0, b: b.0, conductance: conductance_w_k });
+        self.links.push(LinkSpec {
+            a: a.0,
+            b: b.0,
+            conductance: conductance_w_k,
+        });
     }
 
     /// Joins a node to a boundary temperature input with a conductance (W/K). The heat flow
     /// through this link is reported under `group` (for example "walls", "ventilation").
-    pub fn link_boundary(&mut self, node: NodeId, input: InputId, conductance_w_k: f64, group: &str) {
+    pub fn link_boundary(
+        &mut self,
+        node: NodeId,
+        input: InputId,
+        conductance_w_k: f64,
+        group: &str,
+    ) {
         self.boundaries.push(BoundarySpec {
             node: node.0,
             input: input.0,
@@ -129,7 +145,11 @@ impl NetworkBuilder {
     /// Lets `coefficient` times input `input` flow into `node` as heat (W per input unit; 1 for a
     /// heat input in W, an area in m² for an irradiance in W/m²).
     pub fn inject(&mut self, node: NodeId, input: InputId, coefficient: f64) {
-        self.injections.push(InjectionSpec { node: node.0, input: input.0, coefficient });
+        self.injections.push(InjectionSpec {
+            node: node.0,
+            input: input.0,
+            coefficient,
+        });
     }
 
     /// Checks the network and reduces it to a state space.
@@ -144,7 +164,11 @@ impl NetworkBuilder {
     fn validate(&self) -> Result<(), NetworkError> {
         for n in &self.nodes {
             if !(n.capacitance.is_finite() && n.capacitance >= 0.0) {
-                return Err(NetworkError::BadValue { what: "capacitance", name: n.name.clone(), value: n.capacitance });
+                return Err(NetworkError::BadValue {
+                    what: "capacitance",
+                    name: n.name.clone(),
+                    value: n.capacitance,
+                });
             }
         }
         for l in &self.links {
@@ -153,19 +177,37 @@ impl NetworkBuilder {
             }
             if !(l.conductance.is_finite() && l.conductance >= 0.0) {
                 let name = format!("{} – {}", self.nodes[l.a].name, self.nodes[l.b].name);
-                return Err(NetworkError::BadValue { what: "conductance", name, value: l.conductance });
+                return Err(NetworkError::BadValue {
+                    what: "conductance",
+                    name,
+                    value: l.conductance,
+                });
             }
         }
         for b in &self.boundaries {
             if !(b.conductance.is_finite() && b.conductance >= 0.0) {
-                let name = format!("{} – {}", self.nodes[b.node].name, self.inputs[b.input].name);
-                return Err(NetworkError::BadValue { what: "conductance", name, value: b.conductance });
+                let name = format!(
+                    "{} – {}",
+                    self.nodes[b.node].name, self.inputs[b.input].name
+                );
+                return Err(NetworkError::BadValue {
+                    what: "conductance",
+                    name,
+                    value: b.conductance,
+                });
             }
         }
         for j in &self.injections {
             if !j.coefficient.is_finite() {
-                let name = format!("{} into {}", self.inputs[j.input].name, self.nodes[j.node].name);
-                return Err(NetworkError::BadValue { what: "injection coefficient", name, value: j.coefficient });
+                let name = format!(
+                    "{} into {}",
+                    self.inputs[j.input].name, self.nodes[j.node].name
+                );
+                return Err(NetworkError::BadValue {
+                    what: "injection coefficient",
+                    name,
+                    value: j.coefficient,
+                });
             }
         }
         if !self.nodes.iter().any(|n| n.capacitance > 0.0) {
@@ -179,8 +221,12 @@ impl NetworkBuilder {
             adj[l.b].push(l.a);
         }
         let mut seen = vec![false; n];
-        let mut stack: Vec<usize> =
-            self.boundaries.iter().filter(|b| b.conductance > 0.0).map(|b| b.node).collect();
+        let mut stack: Vec<usize> = self
+            .boundaries
+            .iter()
+            .filter(|b| b.conductance > 0.0)
+            .map(|b| b.node)
+            .collect();
         for &s in &stack {
             seen[s] = true;
         }
@@ -192,8 +238,10 @@ impl NetworkBuilder {
                 }
             }
         }
-        let isolated: Vec<String> =
-            (0..n).filter(|&i| !seen[i]).map(|i| self.nodes[i].name.clone()).collect();
+        let isolated: Vec<String> = (0..n)
+            .filter(|&i| !seen[i])
+            .map(|i| self.nodes[i].name.clone())
+            .collect();
         if !isolated.is_empty() {
             return Err(NetworkError::Isolated { nodes: isolated });
         }

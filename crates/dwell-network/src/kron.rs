@@ -43,8 +43,12 @@ pub(crate) fn reduce(b: &NetworkBuilder) -> Result<Network, NetworkError> {
         u[(j.node, j.input)] += j.coefficient;
     }
 
-    let kept: Vec<usize> = (0..total).filter(|&i| b.nodes[i].capacitance > 0.0).collect();
-    let mass: Vec<usize> = (0..total).filter(|&i| b.nodes[i].capacitance == 0.0).collect();
+    let kept: Vec<usize> = (0..total)
+        .filter(|&i| b.nodes[i].capacitance > 0.0)
+        .collect();
+    let mass: Vec<usize> = (0..total)
+        .filter(|&i| b.nodes[i].capacitance == 0.0)
+        .collect();
     let n = kept.len();
     let nm = mass.len();
     let sub = |rows: &[usize], cols: &[usize], a: &DMatrix<f64>| {
@@ -75,11 +79,20 @@ pub(crate) fn reduce(b: &NetworkBuilder) -> Result<Network, NetworkError> {
     let k_red = DMatrix::from_fn(n, n, |i, j| 0.5 * (k_red[(i, j)] + k_red[(j, i)]));
 
     let mut node_temperature = BTreeMap::new();
-    let mut maps: Vec<LinearMap> = vec![LinearMap { x: vec![], u: vec![] }; total];
+    let mut maps: Vec<LinearMap> = vec![
+        LinearMap {
+            x: vec![],
+            u: vec![]
+        };
+        total
+    ];
     for (s, &i) in kept.iter().enumerate() {
         let mut x = vec![0.0; n];
         x[s] = 1.0;
-        maps[i] = LinearMap { x, u: vec![0.0; m_in] };
+        maps[i] = LinearMap {
+            x,
+            u: vec![0.0; m_in],
+        };
     }
     for (r, &i) in mass.iter().enumerate() {
         maps[i] = LinearMap {
@@ -94,7 +107,10 @@ pub(crate) fn reduce(b: &NetworkBuilder) -> Result<Network, NetworkError> {
     for bl in &b.boundaries {
         let entry = boundary_flow
             .entry(bl.group.clone())
-            .or_insert_with(|| LinearMap { x: vec![0.0; n], u: vec![0.0; m_in] });
+            .or_insert_with(|| LinearMap {
+                x: vec![0.0; n],
+                u: vec![0.0; m_in],
+            });
         entry.add_scaled(&maps[bl.node], bl.conductance);
         entry.u[bl.input] -= bl.conductance;
     }
@@ -105,7 +121,11 @@ pub(crate) fn reduce(b: &NetworkBuilder) -> Result<Network, NetworkError> {
         u_red,
         b.inputs.iter().map(|i| i.hold.into()).collect(),
     )
-    .map_err(|e| NetworkError::BadValue { what: "reduced system", name: e.to_string(), value: f64::NAN })?;
+    .map_err(|e| NetworkError::BadValue {
+        what: "reduced system",
+        name: e.to_string(),
+        value: f64::NAN,
+    })?;
 
     Ok(Network {
         states: kept.iter().map(|&i| b.nodes[i].name.clone()).collect(),
@@ -115,7 +135,13 @@ pub(crate) fn reduce(b: &NetworkBuilder) -> Result<Network, NetworkError> {
         boundary_flow,
         eliminated: nm,
         injected: (0..m_in)
-            .map(|j| b.injections.iter().filter(|i| i.input == j).map(|i| i.coefficient).sum())
+            .map(|j| {
+                b.injections
+                    .iter()
+                    .filter(|i| i.input == j)
+                    .map(|i| i.coefficient)
+                    .sum()
+            })
             .collect(),
     })
 }

@@ -16,7 +16,11 @@ fn random_builder(seed: u64, nodes: usize) -> NetworkBuilder {
     let q2 = b.add_input("sun_w_m2", Hold::Step);
     let ids: Vec<_> = (0..nodes)
         .map(|i| {
-            let c = if i % 3 == 1 { 0.0 } else { 10f64.powf(rng.random_range(3.0..7.0)) };
+            let c = if i % 3 == 1 {
+                0.0
+            } else {
+                10f64.powf(rng.random_range(3.0..7.0))
+            };
             b.add_node(&format!("n{i}"), c)
         })
         .collect();
@@ -50,14 +54,20 @@ fn reduced_conductance_is_symmetric_with_row_sums_equal_to_boundary_conductance(
             for j in 0..n {
                 assert_eq!(k[(i, j)], k[(j, i)], "K symmetric");
                 if i != j {
-                    assert!(k[(i, j)] <= 1e-12, "off-diagonal of K is a negative conductance");
+                    assert!(
+                        k[(i, j)] <= 1e-12,
+                        "off-diagonal of K is a negative conductance"
+                    );
                 }
             }
             // Row sum of K = conductance from node i to all boundaries = sum of the
             // temperature-input columns of U in row i (a uniform temperature carries no heat).
             let row: f64 = (0..n).map(|j| k[(i, j)]).sum();
             let bsum = u[(i, 0)] + u[(i, 1)];
-            assert!((row - bsum).abs() <= 1e-10 * k[(i, i)].abs().max(1.0), "row {i}: {row} vs {bsum}");
+            assert!(
+                (row - bsum).abs() <= 1e-10 * k[(i, i)].abs().max(1.0),
+                "row {i}: {row} vs {bsum}"
+            );
         }
         // total boundary conductance is conserved: Σ_i (row sums) = equivalent conductance seen
         // from the boundaries, bounded by the sum of the original boundary links (15+5+7.5)
@@ -76,7 +86,10 @@ fn eigenvalues_of_a_are_real_and_negative_when_connected() {
         let a = net.system.a();
         let ev = a.complex_eigenvalues();
         for z in ev.iter() {
-            assert!(z.im.abs() < 1e-9 * z.re.abs().max(1e-12), "eigenvalue {z} not real");
+            assert!(
+                z.im.abs() < 1e-9 * z.re.abs().max(1e-12),
+                "eigenvalue {z} not real"
+            );
             assert!(z.re < 0.0, "eigenvalue {z} not negative");
         }
     }
@@ -111,11 +124,19 @@ fn kron_reduction_leaves_the_steady_state_unchanged() {
         let full = k.lu().solve(&rhs).unwrap();
         for (i, node) in b.nodes.iter().enumerate() {
             let t = net.node_temperature[&node.name].eval(&x, &u);
-            assert!((t - full[i]).abs() < 1e-9, "node {}: {t} vs {}", node.name, full[i]);
+            assert!(
+                (t - full[i]).abs() < 1e-9,
+                "node {}: {t} vs {}",
+                node.name,
+                full[i]
+            );
         }
         // And the energy balance at steady state: heat in = heat out through the boundaries.
         let out: f64 = net.boundary_flow.values().map(|f| f.eval(&x, &u)).sum();
-        assert!((out - (500.0 + 3.2 * 120.0)).abs() < 1e-8 * 884.0, "steady balance {out}");
+        assert!(
+            (out - (500.0 + 3.2 * 120.0)).abs() < 1e-8 * 884.0,
+            "steady balance {out}"
+        );
     }
 }
 
@@ -151,7 +172,13 @@ fn negative_values_and_empty_networks_are_refused() {
     let out = b.add_input("outdoor_air_c", Hold::Linear);
     let a = b.add_node("air", -1.0);
     b.link_boundary(a, out, 6.0, "walls");
-    assert!(matches!(b.build(), Err(NetworkError::BadValue { what: "capacitance", .. })));
+    assert!(matches!(
+        b.build(),
+        Err(NetworkError::BadValue {
+            what: "capacitance",
+            ..
+        })
+    ));
     let mut b = NetworkBuilder::new();
     let out = b.add_input("outdoor_air_c", Hold::Linear);
     let a = b.add_node("air", 0.0);

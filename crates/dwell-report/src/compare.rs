@@ -48,7 +48,11 @@ pub fn compare_csv(c: &Comparison) -> Result<String, ReportError> {
 
 /// Writes the outputs of a comparison whose base is `base`, `run.json` last; everything is
 /// formatted before anything is written.
-pub fn write_compare(out: &OutputDir, c: &Comparison, base: &House) -> Result<Vec<std::path::PathBuf>, ReportError> {
+pub fn write_compare(
+    out: &OutputDir,
+    c: &Comparison,
+    base: &House,
+) -> Result<Vec<std::path::PathBuf>, ReportError> {
     let j = json(c, "compare.json")?;
     let s = compare_csv(c)?;
     let sheet = house_json(base)?;

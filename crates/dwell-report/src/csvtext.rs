@@ -11,7 +11,10 @@ pub(crate) fn num(v: Option<f64>, d: usize) -> String {
 }
 
 /// CSV text of a header and rows.
-pub(crate) fn csv_text(header: &[&str], rows: impl Iterator<Item = Vec<String>>) -> Result<String, ReportError> {
+pub(crate) fn csv_text(
+    header: &[&str],
+    rows: impl Iterator<Item = Vec<String>>,
+) -> Result<String, ReportError> {
     let fmt = |e: csv::Error| ReportError::Format {
         what: "CSV".into(),
         message: e.to_string(),

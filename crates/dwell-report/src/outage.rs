@@ -19,7 +19,10 @@ pub fn outage_path_csv(s: &OutageStudy) -> Result<String, ReportError> {
     }
     let h: Vec<&str> = header.iter().map(|s| s.as_str()).collect();
     let rows = (0..t.local.len()).map(|k| {
-        let mut r = vec![t.local[k].format("%Y-%m-%dT%H:%M").to_string(), num(Some(t.outdoor_c[k]), 2)];
+        let mut r = vec![
+            t.local[k].format("%Y-%m-%dT%H:%M").to_string(),
+            num(Some(t.outdoor_c[k]), 2),
+        ];
         for z in 0..s.zones.len() {
             r.push(num(Some(t.zone_c[z][k]), 3));
             r.push(num(Some(t.heat_w[z][k]), 1));
@@ -31,7 +34,11 @@ pub fn outage_path_csv(s: &OutageStudy) -> Result<String, ReportError> {
 
 /// Writes the outputs of an outage study of `house`, `run.json` last; everything is formatted
 /// before anything is written.
-pub fn write_outage(out: &OutputDir, s: &OutageStudy, house: &House) -> Result<Vec<std::path::PathBuf>, ReportError> {
+pub fn write_outage(
+    out: &OutputDir,
+    s: &OutageStudy,
+    house: &House,
+) -> Result<Vec<std::path::PathBuf>, ReportError> {
     let j = json(s, "outage.json")?;
     let p = outage_path_csv(s)?;
     let sheet = house_json(house)?;

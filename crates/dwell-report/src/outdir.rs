@@ -34,8 +34,13 @@ pub struct OutputDir {
 impl OutputDir {
     /// Creates the folder (and parents) if needed.
     pub fn create(dir: &Path) -> Result<OutputDir, ReportError> {
-        std::fs::create_dir_all(dir).map_err(|source| ReportError::Io { path: dir.display().to_string(), source })?;
-        Ok(OutputDir { dir: dir.to_path_buf() })
+        std::fs::create_dir_all(dir).map_err(|source| ReportError::Io {
+            path: dir.display().to_string(),
+            source,
+        })?;
+        Ok(OutputDir {
+            dir: dir.to_path_buf(),
+        })
     }
 
     /// The folder.
@@ -48,7 +53,10 @@ impl OutputDir {
     pub fn write(&self, name: &str, bytes: &[u8]) -> Result<PathBuf, ReportError> {
         let target = self.dir.join(name);
         let tmp = self.dir.join(format!(".{name}.tmp-{}", std::process::id()));
-        let io = |source, p: &Path| ReportError::Io { path: p.display().to_string(), source };
+        let io = |source, p: &Path| ReportError::Io {
+            path: p.display().to_string(),
+            source,
+        };
         let result = (|| {
             let mut f = std::fs::File::create(&tmp)?;
             f.write_all(bytes)?;
@@ -73,7 +81,10 @@ mod tests {
         let out = OutputDir::create(&d.path().join("a/b")).unwrap();
         out.write("x.csv", b"1,2\n").unwrap();
         out.write("x.csv", b"3,4\n").unwrap();
-        let names: Vec<_> = std::fs::read_dir(out.path()).unwrap().map(|e| e.unwrap().file_name()).collect();
+        let names: Vec<_> = std::fs::read_dir(out.path())
+            .unwrap()
+            .map(|e| e.unwrap().file_name())
+            .collect();
         assert_eq!(names, vec![std::ffi::OsString::from("x.csv")]);
         assert_eq!(std::fs::read(out.path().join("x.csv")).unwrap(), b"3,4\n");
     }
@@ -86,7 +97,10 @@ mod tests {
         std::fs::write(d.path().join("taken/f"), b"").unwrap();
         let e = out.write("taken", b"x").unwrap_err();
         assert!(e.to_string().contains("taken"));
-        let left: Vec<_> = std::fs::read_dir(d.path()).unwrap().map(|e| e.unwrap().file_name().into_string().unwrap()).collect();
+        let left: Vec<_> = std::fs::read_dir(d.path())
+            .unwrap()
+            .map(|e| e.unwrap().file_name().into_string().unwrap())
+            .collect();
         assert!(left.iter().all(|n| !n.contains(".tmp-")), "{left:?}");
     }
 }

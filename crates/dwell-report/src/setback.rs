@@ -72,14 +72,21 @@ pub fn setback_path_csv(s: &SetbackStudy, zones: &[String]) -> Result<Option<Str
         header.push(format!("{z}_heating_w"));
     }
     let with_setpoint: Vec<usize> = (0..zones.len())
-        .filter(|&z| t.setpoint_c.get(z).is_some_and(|s| s.iter().any(|v| v.is_finite())))
+        .filter(|&z| {
+            t.setpoint_c
+                .get(z)
+                .is_some_and(|s| s.iter().any(|v| v.is_finite()))
+        })
         .collect();
     for &z in &with_setpoint {
         header.push(format!("{}_setpoint_c", zones[z]));
     }
     let h: Vec<&str> = header.iter().map(|s| s.as_str()).collect();
     let rows = (0..t.local.len()).map(|k| {
-        let mut r = vec![t.local[k].format("%Y-%m-%dT%H:%M").to_string(), num(Some(t.outdoor_c[k]), 2)];
+        let mut r = vec![
+            t.local[k].format("%Y-%m-%dT%H:%M").to_string(),
+            num(Some(t.outdoor_c[k]), 2),
+        ];
         for z in 0..zones.len() {
             r.push(num(Some(t.zone_c[z][k]), 3));
             r.push(num(Some(t.heat_w[z][k]), 1));
@@ -94,7 +101,11 @@ pub fn setback_path_csv(s: &SetbackStudy, zones: &[String]) -> Result<Option<Str
 
 /// Writes the outputs of a setback study of `house`, `run.json` last; everything is formatted
 /// before anything is written.
-pub fn write_setback(out: &OutputDir, s: &SetbackStudy, house: &House) -> Result<Vec<std::path::PathBuf>, ReportError> {
+pub fn write_setback(
+    out: &OutputDir,
+    s: &SetbackStudy,
+    house: &House,
+) -> Result<Vec<std::path::PathBuf>, ReportError> {
     let zones: Vec<String> = house.zones.iter().map(|z| z.id.clone()).collect();
     let j = json(s, "setback.json")?;
     let c = setback_csv(s)?;
@@ -105,7 +116,10 @@ pub fn write_setback(out: &OutputDir, s: &SetbackStudy, house: &House) -> Result
         marker = marker.with_offset(*t.offset());
     }
     let marker = marker.to_json()?;
-    let mut w = vec![out.write("setback.json", j.as_bytes())?, out.write("setback.csv", c.as_bytes())?];
+    let mut w = vec![
+        out.write("setback.json", j.as_bytes())?,
+        out.write("setback.csv", c.as_bytes())?,
+    ];
     if let Some(p) = p {
         w.push(out.write("setback_path.csv", p.as_bytes())?);
     }

@@ -16,14 +16,23 @@ fn stamp(t: &chrono::DateTime<chrono::FixedOffset>) -> String {
     t.format("%Y-%m-%dT%H:%M%:z").to_string()
 }
 
-fn csv_text(header: &[String], rows: impl Iterator<Item = Vec<String>>) -> Result<String, ReportError> {
+fn csv_text(
+    header: &[String],
+    rows: impl Iterator<Item = Vec<String>>,
+) -> Result<String, ReportError> {
     let mut w = csv::Writer::from_writer(Vec::new());
-    let fmt = |e: csv::Error| ReportError::Format { what: "CSV".into(), message: e.to_string() };
+    let fmt = |e: csv::Error| ReportError::Format {
+        what: "CSV".into(),
+        message: e.to_string(),
+    };
     w.write_record(header).map_err(fmt)?;
     for r in rows {
         w.write_record(&r).map_err(fmt)?;
     }
-    let bytes = w.into_inner().map_err(|e| ReportError::Format { what: "CSV".into(), message: e.to_string() })?;
+    let bytes = w.into_inner().map_err(|e| ReportError::Format {
+        what: "CSV".into(),
+        message: e.to_string(),
+    })?;
     Ok(String::from_utf8(bytes).expect("CSV of UTF-8 strings is UTF-8"))
 }
 
@@ -61,12 +70,17 @@ pub fn inputs_csv(r: &SimResult) -> Result<String, ReportError> {
 }
 
 /// Writes the three files of a simulation into `out`.
-pub fn write_simulation(out: &OutputDir, r: &SimResult) -> Result<Vec<std::path::PathBuf>, ReportError> {
+pub fn write_simulation(
+    out: &OutputDir,
+    r: &SimResult,
+) -> Result<Vec<std::path::PathBuf>, ReportError> {
     // Format everything first so nothing is written when formatting fails.
     let hourly = hourly_csv(r)?;
     let inputs = inputs_csv(r)?;
-    let summary = serde_json::to_string_pretty(&r.summary)
-        .map_err(|e| ReportError::Format { what: "summary.json".into(), message: e.to_string() })?;
+    let summary = serde_json::to_string_pretty(&r.summary).map_err(|e| ReportError::Format {
+        what: "summary.json".into(),
+        message: e.to_string(),
+    })?;
     Ok(vec![
         out.write("hourly.csv", hourly.as_bytes())?,
         out.write("inputs.csv", inputs.as_bytes())?,

@@ -12,7 +12,15 @@ use crate::study_files::{house_json, HOUSE_FILE};
 
 /// `sizing.csv`: one row per zone and a `total` row; watts, breakdown by group.
 pub fn sizing_csv(s: &Sizing) -> Result<String, ReportError> {
-    let groups = ["walls", "roof", "floor_ground", "windows", "doors", "ventilation", "links"];
+    let groups = [
+        "walls",
+        "roof",
+        "floor_ground",
+        "windows",
+        "doors",
+        "ventilation",
+        "links",
+    ];
     let mut header = vec![
         "zone",
         "heated",
@@ -42,7 +50,11 @@ pub fn sizing_csv(s: &Sizing) -> Result<String, ReportError> {
                 num(z.installed_w, 0),
                 num(z.oversizing_ratio, 3),
             ];
-            r.extend(groups.iter().map(|g| num(z.breakdown.by_group_w.get(*g).copied(), 1)));
+            r.extend(
+                groups
+                    .iter()
+                    .map(|g| num(z.breakdown.by_group_w.get(*g).copied(), 1)),
+            );
             r.push(num(Some(z.breakdown.to_zones_w.values().sum()), 1));
             r.push(num(Some(z.breakdown.other_w), 1));
             r
@@ -68,7 +80,9 @@ pub fn sizing_csv(s: &Sizing) -> Result<String, ReportError> {
 
 /// `load_duration.csv`: `hours_at_or_above_h`, `load_w`, one row per hour of the year.
 pub fn load_duration_csv(s: &Sizing) -> Result<Option<String>, ReportError> {
-    let Some(l) = &s.load_duration else { return Ok(None) };
+    let Some(l) = &s.load_duration else {
+        return Ok(None);
+    };
     csv_text(
         &["hours_at_or_above_h", "load_w"],
         l.sorted_w
@@ -85,24 +99,39 @@ pub fn capacity_curve_csv(s: &Sizing) -> Result<Option<String>, ReportError> {
         return Ok(None);
     }
     csv_text(
-        &["fraction_of_dynamic", "total_capacity_w", "occupied_hours_below_h"],
-        s.capacity_curve
-            .iter()
-            .map(|p| vec![format!("{:.2}", p.fraction), num(Some(p.total_capacity_w), 1), p.occupied_hours_below_h.to_string()]),
+        &[
+            "fraction_of_dynamic",
+            "total_capacity_w",
+            "occupied_hours_below_h",
+        ],
+        s.capacity_curve.iter().map(|p| {
+            vec![
+                format!("{:.2}", p.fraction),
+                num(Some(p.total_capacity_w), 1),
+                p.occupied_hours_below_h.to_string(),
+            ]
+        }),
     )
     .map(Some)
 }
 
 /// Writes the outputs of a sizing of `house`, `run.json` last; everything is formatted before
 /// anything is written.
-pub fn write_sizing(out: &OutputDir, s: &Sizing, house: &House) -> Result<Vec<std::path::PathBuf>, ReportError> {
+pub fn write_sizing(
+    out: &OutputDir,
+    s: &Sizing,
+    house: &House,
+) -> Result<Vec<std::path::PathBuf>, ReportError> {
     let j = json(s, "sizing.json")?;
     let c = sizing_csv(s)?;
     let l = load_duration_csv(s)?;
     let k = capacity_curve_csv(s)?;
     let sheet = house_json(house)?;
     let marker = RunMarker::new(RunCommand::Size).to_json()?;
-    let mut w = vec![out.write("sizing.json", j.as_bytes())?, out.write("sizing.csv", c.as_bytes())?];
+    let mut w = vec![
+        out.write("sizing.json", j.as_bytes())?,
+        out.write("sizing.csv", c.as_bytes())?,
+    ];
     if let Some(l) = l {
         w.push(out.write("load_duration.csv", l.as_bytes())?);
     }

@@ -10,7 +10,7 @@
 
 use crate::lcp::{self, LcpScratch};
 use crate::onoff::OnOffThermostat;
-use crate::packed::Packed;
+use crate::packed::{Line, Packed, Panels, PANEL};
 use crate::{InputKind, SolverError, Stepper};
 use nalgebra::DMatrix;
 
@@ -39,19 +39,27 @@ pub struct ControlChannel {
 /// Precomputed control data and scratch.
 #[derive(Clone, Debug)]
 pub(crate) struct Control {
-    channels: Vec<ControlChannel>,
+    pub(crate) channels: Vec<ControlChannel>,
     /// `M`, `q × q`, row-major: output of channel row per unit fraction of channel column.
-    influence: Vec<f64>,
+    pub(crate) influence: Vec<f64>,
     /// `H e_c`, the state change per unit fraction, one row per channel.
     state_gain: Packed,
     /// The readouts' change per unit fraction (means, then instant values), one row per
     /// channel.
-    output_gain: Packed,
-    rhs: Vec<f64>,
-    fraction: Vec<f64>,
+    pub(crate) output_gain: Packed,
+    pub(crate) rhs: Vec<f64>,
+    pub(crate) fraction: Vec<f64>,
     now: Vec<f64>,
-    scratch: LcpScratch,
-    sweeps: usize,
+    pub(crate) scratch: LcpScratch,
+    pub(crate) sweeps: usize,
+    /// For block runs (`stepper/march.rs`), one row per channel, each padded with zeros to
+    /// whole panels (`⌈n/8⌉` lines): the state part of the controlled instant readout row
+    /// (over `ξ`) and the state gain `H e_c`.
+    pub(crate) row_state: Vec<Line>,
+    pub(crate) gain_lines: Vec<Line>,
+    /// The input part of the controlled instant readout rows (over `[u_k; u_{k+1,T}]`),
+    /// `q` rows.
+    pub(crate) row_inputs: Panels,
 }
 
 impl Stepper {
@@ -116,7 +124,29 @@ impl Stepper {
                 )));
             }
         }
+        // The controlled rows and gains for block runs.
+        let np = self.n.div_ceil(PANEL);
+        let all = self.outputs.to_matrix();
+        let mut row_state = vec![Line([0.0; PANEL]); q * np];
+        let mut gain_lines = vec![Line([0.0; PANEL]); q * np];
+        let wl = all.ncols() - self.n;
+        let mut row_inputs = DMatrix::zeros(q, wl);
+        for (c, ch) in channels.iter().enumerate() {
+            let r = self.p_mean + ch.output;
+            for i in 0..self.n {
+                row_state[c * np + i / PANEL].0[i % PANEL] = all[(r, i)];
+                gain_lines[c * np + i / PANEL].0[i % PANEL] = gains[(c, i)];
+            }
+            for j in 0..wl {
+                row_inputs[(c, j)] = all[(r, self.n + j)];
+            }
+        }
+        let scratch = LcpScratch::with_inverse(&influence, q);
+
         self.control = Some(Box::new(Control {
+            row_state,
+            gain_lines,
+            row_inputs: Panels::from_matrix(&row_inputs),
             channels: channels.to_vec(),
             influence,
             state_gain: Packed::from_matrix(&gains),
@@ -124,7 +154,7 @@ impl Stepper {
             rhs: vec![0.0; q],
             fraction: vec![0.0; q],
             now: vec![0.0; q],
-            scratch: LcpScratch::new(q),
+            scratch,
             sweeps: 0,
         }));
         Ok(self)

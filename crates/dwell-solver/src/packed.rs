@@ -450,6 +450,27 @@ impl Panels {
         unsafe { self.gemm_into::<V, NC, _>(segs, count, &mut sink) }
     }
 
+    /// [`Panels::gemm_in`] in the form `kernel` (one call).
+    pub(crate) fn gemm(
+        &self,
+        kernel: Kernel,
+        segs: &[Segment],
+        count: usize,
+        y: &mut [f64],
+        ld_y: usize,
+    ) {
+        match kernel {
+            // SAFETY: `Plain` is baseline code.
+            Kernel::Portable => unsafe { self.gemm_in::<Plain, 2>(segs, count, y, ld_y) },
+            // SAFETY (both arms): the fused forms are only constructed after
+            // `is_x86_feature_detected!` reported their features.
+            #[cfg(target_arch = "x86_64")]
+            Kernel::Avx2Fma => unsafe { gemm_avx2(self, segs, count, y, ld_y) },
+            #[cfg(target_arch = "x86_64")]
+            Kernel::Avx512 => unsafe { gemm_avx512(self, segs, count, y, ld_y) },
+        }
+    }
+
     /// `V = A · X` over `count` product columns as in [`Panels::gemm_in`], each panel of `V`
     /// fed at once into the diagonal recursion `s[:, c+1] = d ∘ s[:, c] + V[:, c]` (the state
     /// update of the modal route) instead of being stored: `s` column-major with leading
@@ -650,6 +671,8 @@ pub(crate) trait Lane8: Copy {
     unsafe fn add(a: Self, b: Self) -> Self;
     /// Writes the lanes to `p`.
     unsafe fn store(self, p: &mut [f64; PANEL]);
+    /// The sum of the eight lanes.
+    unsafe fn sum(self) -> f64;
     /// `dst ← src` (equal lengths) in this form's registers, a short tail masked where the
     /// form can: a row of a few values copied this way costs a few instructions, where
     /// `copy_from_slice` calls `memcpy`.
@@ -692,6 +715,11 @@ impl Lane8 for Plain {
     #[inline(always)]
     unsafe fn store(self, p: &mut [f64; PANEL]) {
         *p = self.0;
+    }
+    #[inline(always)]
+    unsafe fn sum(self) -> f64 {
+        let v = self.0;
+        ((v[0] + v[4]) + (v[2] + v[6])) + ((v[1] + v[5]) + (v[3] + v[7]))
     }
     #[inline(always)]
     unsafe fn copy(dst: &mut [f64], src: &[f64]) {
@@ -751,6 +779,16 @@ mod x86 {
                 _mm256_storeu_pd(p.as_mut_ptr(), self.0[0]);
                 _mm256_storeu_pd(p.as_mut_ptr().add(4), self.0[1]);
             }
+        }
+        #[inline]
+        #[target_feature(enable = "avx2,fma")]
+        unsafe fn sum(self) -> f64 {
+            // Lanes (0+4, 1+5, 2+6, 3+7), then pairs, then the last two.
+            let v = _mm256_add_pd(self.0[0], self.0[1]);
+            let lo = _mm256_castpd256_pd128(v);
+            let hi = _mm256_extractf128_pd::<1>(v);
+            let s = _mm_add_pd(lo, hi);
+            _mm_cvtsd_f64(_mm_add_sd(s, _mm_unpackhi_pd(s, s)))
         }
         #[inline]
         #[target_feature(enable = "avx2,fma")]
@@ -817,6 +855,19 @@ mod x86 {
         }
         #[inline]
         #[target_feature(enable = "avx512f")]
+        unsafe fn sum(self) -> f64 {
+            // Lanes (0+4, 1+5, 2+6, 3+7), then pairs, then the last two.
+            let v = _mm256_add_pd(
+                _mm512_castpd512_pd256(self.0),
+                _mm512_extractf64x4_pd::<1>(self.0),
+            );
+            let lo = _mm256_castpd256_pd128(v);
+            let hi = _mm256_extractf128_pd::<1>(v);
+            let s = _mm_add_pd(lo, hi);
+            _mm_cvtsd_f64(_mm_add_sd(s, _mm_unpackhi_pd(s, s)))
+        }
+        #[inline]
+        #[target_feature(enable = "avx512f")]
         unsafe fn copy(dst: &mut [f64], src: &[f64]) {
             assert_eq!(dst.len(), src.len(), "copy lengths");
             let (len, d, s) = (src.len(), dst.as_mut_ptr(), src.as_ptr());
@@ -839,6 +890,20 @@ mod x86 {
 
 #[cfg(target_arch = "x86_64")]
 pub(crate) use x86::{Avx2, Avx512};
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2,fma")]
+unsafe fn gemm_avx2(a: &Panels, segs: &[Segment], count: usize, y: &mut [f64], ld_y: usize) {
+    // SAFETY: this function's features are those of `Avx2`.
+    unsafe { a.gemm_in::<Avx2, 4>(segs, count, y, ld_y) }
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f,avx2,fma")]
+unsafe fn gemm_avx512(a: &Panels, segs: &[Segment], count: usize, y: &mut [f64], ld_y: usize) {
+    // SAFETY: this function's features include those of `Avx512`.
+    unsafe { a.gemm_in::<Avx512, 8>(segs, count, y, ld_y) }
+}
 
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx2,fma")]

@@ -6,7 +6,7 @@ use nalgebra::DMatrix;
 
 use crate::control::Control;
 use crate::discretization::{ModalBasis, Transition};
-use crate::packed::{dot, Init, Kernel, Lane8, Packed, Panels, Plain, PANEL};
+use crate::packed::{dot, Init, Kernel, Lane8, Packed, Panels, Plain, Segment, PANEL};
 #[cfg(target_arch = "x86_64")]
 use crate::packed::{Avx2, Avx512};
 use crate::work::Work;
@@ -62,7 +62,7 @@ pub struct Stepper {
     /// `[Φ | H]` (block) or `H` (modal), `n` rows.
     advance: Panels,
     /// Both readouts over `z`, `p_m + p_i` rows (means, then instant values).
-    outputs: Panels,
+    pub(crate) outputs: Panels,
     /// Instant readout rows over `[ξ_k; u_k]` (the start of a step), for the thermostats.
     inst_now: Packed,
     /// `Γ₁` (temperature columns), `n × m_T`, in the state's coordinates.
@@ -403,9 +403,9 @@ impl Stepper {
         }
         let zl = self.work.z().len();
         let blk = RUN_BLOCK.min(steps);
-        let o = self.outputs.to_matrix();
-        let mut zb = DMatrix::<f64>::zeros(zl, blk);
-        let mut yb = DMatrix::<f64>::zeros(p, blk);
+        let ld_y = p.div_ceil(PANEL) * PANEL;
+        let mut zb = vec![0.0; zl * blk];
+        let mut yb = vec![0.0; ld_y * blk];
         let (mut k, mut last) = (0, 0);
         while k < steps {
             let b = blk.min(steps - k);
@@ -414,20 +414,27 @@ impl Stepper {
                 let u_k = &inputs[(k + j) * m..(k + j + 1) * m];
                 let u_next = &inputs[(k + j + 1) * m..(k + j + 2) * m];
                 self.load_inputs(u_k, u_next);
-                zb.column_mut(j).copy_from_slice(self.work.z());
+                zb[j * zl..(j + 1) * zl].copy_from_slice(self.work.z());
                 self.next_only();
                 self.commit();
             }
-            yb.columns_mut(0, b).gemm(1.0, &o, &zb.columns(0, b), 0.0);
+            let z = Segment {
+                data: &zb,
+                ld: zl,
+                cols: zl,
+                rows: None,
+                shift: 0,
+            };
+            self.outputs.gemm(self.kernel, &[z], b, &mut yb, ld_y);
             for j in 0..b {
-                let col = yb.column(j);
-                mean_out[(k + j) * pm..(k + j + 1) * pm].copy_from_slice(&col.as_slice()[..pm]);
-                instant_out[(k + j) * pi..(k + j + 1) * pi].copy_from_slice(&col.as_slice()[pm..]);
+                let col = &yb[j * ld_y..j * ld_y + p];
+                mean_out[(k + j) * pm..(k + j + 1) * pm].copy_from_slice(&col[..pm]);
+                instant_out[(k + j) * pi..(k + j + 1) * pi].copy_from_slice(&col[pm..]);
             }
             k += b;
         }
         let (_, _, out) = self.work.split();
-        out.copy_from_slice(yb.column(last - 1).as_slice());
+        out.copy_from_slice(&yb[(last - 1) * ld_y..(last - 1) * ld_y + p]);
     }
 
     /// `ξ ← s_next`.

@@ -98,3 +98,38 @@ fn stepping_and_thermostats_do_not_allocate() {
         assert!(sink.is_finite());
     }
 }
+
+/// Block runs allocate their block buffers once per call, before the loop: the count of
+/// allocations of a call does not grow with its length (and is small).
+#[test]
+fn block_runs_allocate_per_call_not_per_step() {
+    let sys = common::random_network(82, 20, 4, true);
+    let (n, m) = (sys.states(), sys.inputs());
+    let series = common::input_series(82, m, 2000, 0.0, 0.0);
+    let flat: Vec<f64> = series.iter().flatten().copied().collect();
+    for route in [Route::Modal, Route::Block] {
+        let d = Discretization::new(&sys, 3600.0, route).unwrap();
+        let r = Readout::nodes(&[0, 3, 5], n, m);
+        let channels = [ControlChannel {
+            weights: vec![(2, 3000.0)],
+            output: 0,
+        }];
+        let mut s = Stepper::new(&d, &r, &r)
+            .unwrap()
+            .with_control(&channels)
+            .unwrap();
+        s.set_state(&vec![10.0; n]);
+        let mut counts = Vec::new();
+        for steps in [100, 2000] {
+            let (mut yi, mut ym) = (vec![0.0; steps * 3], vec![0.0; steps * 3]);
+            let (sets, mut f) = (vec![19.0; steps], vec![0.0; steps]);
+            let u = &flat[..(steps + 1) * m];
+            let before = allocations();
+            s.run_known(u, &mut yi, &mut ym);
+            s.run_thermostat(u, &sets, &[true], &mut f, &mut yi, &mut ym);
+            counts.push(allocations() - before);
+        }
+        assert_eq!(counts[0], counts[1], "{route:?}: allocations {counts:?}");
+        assert!(counts[0] <= 8, "{route:?}: allocations {counts:?}");
+    }
+}

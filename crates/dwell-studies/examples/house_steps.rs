@@ -1,7 +1,9 @@
 //! Stepping only, for each shipped example house: one year hourly with the default weather,
 //! inputs computed beforehand, every zone's air temperature read at each step end and as a
-//! step mean. Two controls: free-floating (`Stepper::step`) and the capacity-limited
-//! thermostat at 20 °C in every heated zone (`Stepper::step_thermostat`). Timed by the
+//! step mean. Two controls: free-floating and the capacity-limited thermostat at 20 °C in
+//! every heated zone, each run step by step (`Stepper::step`, `Stepper::step_thermostat`)
+//! and as a block run over the known inputs (`Stepper::run_known`,
+//! `Stepper::run_thermostat`). Timed by the
 //! fastest of many repeats, which a busy machine disturbs far less than a mean; setup
 //! (discretisation and stepper) is timed once per house.
 //!
@@ -42,7 +44,7 @@ fn main() {
     paths.sort();
     let weather = default_weather();
     println!(
-        "house                  states inputs zones  setup_ms  free_year_ms  thermostat_year_ms  (fastest of {reps})"
+        "house                  states inputs zones  setup_ms  free_year_ms  free_block_ms  thermostat_year_ms  thermostat_block_ms  (fastest of {reps})"
     );
     for path in paths {
         let model = read_model(&path).expect("example reads");
@@ -94,9 +96,29 @@ fn main() {
             }
             black_box(acc);
         });
+        // The same two years as block runs over the inputs, known in advance.
+        let flat: Vec<f64> = u.iter().flatten().copied().collect();
+        let p = air.len();
+        let (mut yi, mut ym) = (vec![0.0; hours * p], vec![0.0; hours * p]);
+        let free_block_ms = fastest(reps, || {
+            free.set_state(&start);
+            free.run_known(&flat, &mut yi, &mut ym);
+            black_box(ym[0]);
+        });
+        let sets = vec![20.0; hours * q];
+        let mut fractions = vec![0.0; hours * q];
+        let ctl_block_ms = fastest(reps, || {
+            ctl.set_state(&start);
+            if q > 0 {
+                ctl.run_thermostat(&flat, &sets, &enabled, &mut fractions, &mut yi, &mut ym);
+            } else {
+                ctl.run_known(&flat, &mut yi, &mut ym);
+            }
+            black_box(ym[0]);
+        });
         let name = path.file_stem().unwrap().to_string_lossy();
         println!(
-            "{name:<22} {n:>6} {m:>6} {:>5}  {setup_ms:>8.3}  {free_ms:>12.3}  {ctl_ms:>18.3}",
+            "{name:<22} {n:>6} {m:>6} {:>5}  {setup_ms:>8.3}  {free_ms:>12.3}  {free_block_ms:>13.3}  {ctl_ms:>18.3}  {ctl_block_ms:>19.3}",
             house.zones.len()
         );
     }

@@ -40,7 +40,12 @@ pub struct Comfort {
 
 impl Comfort {
     /// Evaluates hourly temperatures `temp_c` at `times`, occupied where `occupied` is true.
-    pub fn evaluate(band: (f64, f64), times: &[DateTime<FixedOffset>], temp_c: &[f64], occupied: &[bool]) -> Comfort {
+    pub fn evaluate(
+        band: (f64, f64),
+        times: &[DateTime<FixedOffset>],
+        temp_c: &[f64],
+        occupied: &[bool],
+    ) -> Comfort {
         let (lo, hi) = band;
         let mut c = Comfort {
             band_min_c: lo,
@@ -93,13 +98,25 @@ impl Comfort {
     /// band, and hours above it.
     pub fn warnings(&self, zone: &str) -> Vec<String> {
         const MONTHS: [&str; 12] = [
-            "January", "February", "March", "April", "May", "June", "July", "August", "September", "October", "November", "December",
+            "January",
+            "February",
+            "March",
+            "April",
+            "May",
+            "June",
+            "July",
+            "August",
+            "September",
+            "October",
+            "November",
+            "December",
         ];
         let mut out = Vec::new();
         let mut months: Vec<usize> = (0..12).filter(|&m| self.below_by_month[m] > 0).collect();
         months.sort_by_key(|&m| std::cmp::Reverse(self.below_by_month[m]));
         for &m in months.iter().take(3) {
-            let (v, t) = self.coldest_by_month[m].expect("a month with hours below has a coldest hour");
+            let (v, t) =
+                self.coldest_by_month[m].expect("a month with hours below has a coldest hour");
             out.push(format!(
                 "{zone} falls below {:.1} °C for {} occupied hour{} in {}; coldest {:.1} °C on {}",
                 self.band_min_c,
@@ -131,7 +148,9 @@ mod tests {
     #[test]
     fn counts_spells_and_degree_hours() {
         let tz = FixedOffset::east_opt(0).unwrap();
-        let times: Vec<_> = (0..8).map(|h| tz.with_ymd_and_hms(2025, 1, 6, h, 0, 0).unwrap()).collect();
+        let times: Vec<_> = (0..8)
+            .map(|h| tz.with_ymd_and_hms(2025, 1, 6, h, 0, 0).unwrap())
+            .collect();
         let temp = [21.0, 19.0, 18.0, 19.995, 17.0, 16.0, 26.5, 20.0];
         let occ = [true, true, true, true, false, true, true, true];
         let c = Comfort::evaluate((20.0, 25.0), &times, &temp, &occ);
@@ -141,7 +160,10 @@ mod tests {
         assert!((c.degree_hours_below_kh - (1.0 + 2.0 + 4.0)).abs() < 1e-12);
         assert_eq!(c.hours_above, 1);
         assert_eq!(c.coldest_occupied_c, Some(16.0));
-        assert_eq!(c.coldest_occupied_time.as_deref(), Some("2025-01-06T05:00+00:00"));
+        assert_eq!(
+            c.coldest_occupied_time.as_deref(),
+            Some("2025-01-06T05:00+00:00")
+        );
         let w = c.warnings("bedroom");
         assert_eq!(w[0], "bedroom falls below 20.0 °C for 3 occupied hours in January; coldest 16.0 °C on 2025-01-06 05:00");
     }

@@ -36,7 +36,11 @@ pub struct Variant {
 
 /// Applies `patches` (label, patch) to the base model's JSON value and validates and compiles
 /// the result; errors carry the label `"<file> + <patch> + …"`.
-pub fn patched(base: &Value, file: &str, patches: &[(String, Value)]) -> Result<(ModelFile, House), ModelError> {
+pub fn patched(
+    base: &Value,
+    file: &str,
+    patches: &[(String, Value)],
+) -> Result<(ModelFile, House), ModelError> {
     let mut v = base.clone();
     let mut label = file.to_string();
     for (name, p) in patches {
@@ -55,7 +59,10 @@ pub fn grid<T: Clone>(lists: &[Vec<T>]) -> Vec<Vec<T>> {
     for l in lists {
         out = out
             .iter()
-            .flat_map(|prefix| l.iter().map(move |x| [prefix.clone(), vec![x.clone()]].concat()))
+            .flat_map(|prefix| {
+                l.iter()
+                    .map(move |x| [prefix.clone(), vec![x.clone()]].concat())
+            })
             .collect();
     }
     out
@@ -186,10 +193,14 @@ pub fn compare_with_progress(
                 patches: v.parts.clone(),
                 heating_kwh: s.total_heating_kwh,
                 change_kwh: s.total_heating_kwh - base.total_heating_kwh,
-                change_pct: (base.total_heating_kwh > 1e-9)
-                    .then(|| 100.0 * (s.total_heating_kwh - base.total_heating_kwh) / base.total_heating_kwh),
+                change_pct: (base.total_heating_kwh > 1e-9).then(|| {
+                    100.0 * (s.total_heating_kwh - base.total_heating_kwh) / base.total_heating_kwh
+                }),
                 peak_w: s.total_peak_heating_w,
-                lowest_occupied_c: comforts.iter().filter_map(|c| c.coldest_occupied_c).reduce(f64::min),
+                lowest_occupied_c: comforts
+                    .iter()
+                    .filter_map(|c| c.coldest_occupied_c)
+                    .reduce(f64::min),
                 hours_outside_band_h: comforts.iter().map(|c| c.hours_below + c.hours_above).sum(),
                 purchased_kwh: s.total_purchased_kwh,
                 money: s.total_cost,

@@ -41,7 +41,8 @@ pub struct DesignSpell {
 impl DesignSpell {
     /// Outdoor air (°C) at local hour of day `h` (0 … 24).
     pub fn air_at(&self, h: f64) -> f64 {
-        self.design_c + 0.5 * self.swing_k * (1.0 - (2.0 * std::f64::consts::PI * (h - 5.0) / 24.0).cos())
+        self.design_c
+            + 0.5 * self.swing_k * (1.0 - (2.0 * std::f64::consts::PI * (h - 5.0) / 24.0).cos())
     }
 
     /// Builds the hourly series: `days·24 + 1` stamps from 00:00 on the start day.
@@ -65,8 +66,12 @@ impl DesignSpell {
             )));
         }
         let secs = (self.utc_offset_h * 3600.0).round() as i32;
-        let tz = FixedOffset::east_opt(secs)
-            .ok_or_else(|| StudyError::Option(format!("site UTC offset {} h is not a valid offset", self.utc_offset_h)))?;
+        let tz = FixedOffset::east_opt(secs).ok_or_else(|| {
+            StudyError::Option(format!(
+                "site UTC offset {} h is not a valid offset",
+                self.utc_offset_h
+            ))
+        })?;
         let t0 = tz
             .from_local_datetime(&spell_start_day().and_hms_opt(0, 0, 0).expect("midnight"))
             .single()
@@ -89,7 +94,8 @@ impl DesignSpell {
             filled_hours: 0,
             metadata: Vec::new(),
         };
-        w.validate().map_err(|e| StudyError::Option(format!("design spell: {e}")))?;
+        w.validate()
+            .map_err(|e| StudyError::Option(format!("design spell: {e}")))?;
         Ok(w)
     }
 }
@@ -127,7 +133,11 @@ mod tests {
             ground_c: 9.0,
             utc_offset_h: 0.0,
         };
-        assert!(s.weather().unwrap_err().to_string().contains("--design-temp"));
+        assert!(s
+            .weather()
+            .unwrap_err()
+            .to_string()
+            .contains("--design-temp"));
         s.design_c = -5.0;
         s.days = 0;
         assert!(s.weather().unwrap_err().to_string().contains("--days"));

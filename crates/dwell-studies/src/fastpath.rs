@@ -155,6 +155,10 @@ pub struct CacheCounts {
 /// for always 1)])`.
 type ScheduledInput = (usize, Vec<(f64, Option<Arc<Vec<f64>>>)>);
 
+/// A heater input, its heater and the thermostat channels that feed it: `(input, heater,
+/// [(channel, full power (W))])`.
+type HeaterShares = (usize, usize, Vec<(usize, f64)>);
+
 /// The inputs of one variant, as references into the shared tables.
 /// Every table is indexed by the step `k` counted from the period's start, so filling needs
 /// no division and no clock.
@@ -572,46 +576,81 @@ impl<'w> SweepContext<'w> {
         } else {
             Arc::new(build())
         };
-        let row = |k: usize| &u_all[k * m..(k + 1) * m];
-
-        // Buffers: nothing below allocates until the figures are reduced.
-        let mut u_k = vec![0.0; m];
-        let mut setpoint = vec![0.0; q];
-        let enabled = vec![true; q];
-        let mut fraction = vec![0.0; q];
-        let mut x = vec![0.0; n];
-        let mut advance = |stepper: &mut Stepper, k: usize, u_k: &mut [f64]| {
-            u_k.copy_from_slice(row(k));
-            let u_next = row(k + 1);
-            match opts.control {
-                Control::Free => stepper.step(u_k, u_next),
-                Control::Schedule => {
-                    for (j, cap, t) in &power_tables {
-                        u_k[*j] = t[k].clamp(0.0, *cap);
-                    }
-                    stepper.step(u_k, u_next)
+        // The inputs as run: prescribed heater powers written into a copy for the schedule
+        // control (the shared table keeps heaters at 0).
+        let u_run: std::borrow::Cow<[f64]> = if power_tables.is_empty() {
+            std::borrow::Cow::Borrowed(&u_all[..])
+        } else {
+            let mut own = u_all.to_vec();
+            for k in 0..=steps {
+                for (j, cap, t) in &power_tables {
+                    own[k * m + j] = t[k].clamp(0.0, *cap);
                 }
-                Control::Thermostat | Control::OnOff if use_channels => {
-                    for (c, tables) in channel_tables.iter().enumerate() {
-                        setpoint[c] = tables
+            }
+            std::borrow::Cow::Owned(own)
+        };
+        let row = |k: usize| &u_run[k * m..(k + 1) * m];
+        // Each channel's setpoint at each step: the highest of its heaters' schedules.
+        let sets: Vec<f64> = if use_channels {
+            (0..steps)
+                .flat_map(|k| {
+                    channel_tables.iter().map(move |tables| {
+                        tables
                             .iter()
                             .map(|t| t[k])
-                            .fold(f64::NEG_INFINITY, f64::max);
-                    }
-                    if opts.control == Control::Thermostat {
-                        stepper.step_thermostat(u_k, u_next, &setpoint, &enabled, &mut fraction);
-                    } else {
+                            .fold(f64::NEG_INFINITY, f64::max)
+                    })
+                })
+                .collect()
+        } else {
+            vec![]
+        };
+        // The thermostats' share of each heater input: (input, channel, full power (W)).
+        let shares: Vec<(usize, usize, f64)> = channels
+            .iter()
+            .enumerate()
+            .flat_map(|(c, ch)| ch.weights.iter().map(move |&(j, w)| (j, c, w)))
+            .collect();
+
+        // Buffers: nothing below allocates until the figures are reduced.
+        let p_i = house.zones.len();
+        let enabled = vec![true; q];
+        let mut fractions = vec![0.0; if use_channels { steps * q } else { 0 }];
+        let mut air = vec![0.0; steps * p_i];
+        let mut u_k = vec![0.0; m];
+        let mut x = vec![0.0; n];
+        // Steps `0 .. count` from the state the stepper holds: known inputs and the
+        // capacity-limited thermostat run as block runs over the tables (`Stepper::run_known`,
+        // `Stepper::run_thermostat`); the on/off thermostat, whose switching depends on the
+        // state at each step's start, step by step. Zone air temperatures at step ends go to
+        // `air`, the thermostats' fractions to `fractions`.
+        let mut run = |stepper: &mut Stepper, count: usize| {
+            let u = &u_run[..(count + 1) * m];
+            let air_out = &mut air[..count * p_i];
+            match opts.control {
+                Control::Thermostat if use_channels => stepper.run_thermostat(
+                    u,
+                    &sets[..count * q],
+                    &enabled,
+                    &mut fractions[..count * q],
+                    air_out,
+                    &mut [],
+                ),
+                Control::OnOff if use_channels => {
+                    for k in 0..count {
+                        u_k.copy_from_slice(row(k));
                         stepper.step_on_off(
                             &mut onoff,
-                            u_k,
-                            u_next,
-                            &setpoint,
+                            &mut u_k,
+                            row(k + 1),
+                            &sets[k * q..(k + 1) * q],
                             &enabled,
-                            &mut fraction,
+                            &mut fractions[k * q..(k + 1) * q],
                         );
+                        air_out[k * p_i..(k + 1) * p_i].copy_from_slice(stepper.instant());
                     }
                 }
-                _ => stepper.step(u_k, u_next),
+                _ => stepper.run_known(u, air_out, &mut []),
             }
         };
 
@@ -630,9 +669,7 @@ impl<'w> SweepContext<'w> {
                 let mut prev = vec![first; n];
                 let mut change = f64::INFINITY;
                 while warmup_cycles < 30 && change > 0.01 {
-                    for k in 0..window {
-                        advance(&mut stepper, k, &mut u_k);
-                    }
+                    run(&mut stepper, window);
                     stepper.state_into(&mut x);
                     change = x
                         .iter()
@@ -644,8 +681,15 @@ impl<'w> SweepContext<'w> {
                 }
             }
         }
+        stepper.state_into(&mut x);
+        let mut min_air = house
+            .zones
+            .iter()
+            .map(|z| x[z.air_state])
+            .fold(f64::INFINITY, f64::min);
+        run(&mut stepper, steps);
 
-        // The period, reduced as it goes.
+        // The period, reduced from the run's tables.
         let nh = model.heaters.len();
         let mut heater_j = vec![0.0; nh];
         let mut purchased_j = vec![0.0; nh];
@@ -663,30 +707,65 @@ impl<'w> SweepContext<'w> {
                     .collect()
             })
             .collect();
-        stepper.state_into(&mut x);
-        let mut min_air = house
-            .zones
+        // Input `j` of step `k` as the step applied it: the table's value plus the
+        // thermostats' heat (`shares` of input `j`).
+        let applied = |k: usize, j: usize, shares: &[(usize, f64)]| {
+            let mut v = row(k)[j];
+            for &(c, w) in shares {
+                v += fractions[k * q + c] * w;
+            }
+            v
+        };
+        let shares_of = |j: usize| -> Vec<(usize, f64)> {
+            if !use_channels {
+                return vec![];
+            }
+            shares
+                .iter()
+                .filter(|s| s.0 == j)
+                .map(|&(_, c, w)| (c, w))
+                .collect()
+        };
+        let heater_shares: Vec<HeaterShares> = heater_list
             .iter()
-            .map(|z| x[z.air_state])
-            .fold(f64::INFINITY, f64::min);
+            .map(|&(j, hi)| (j, hi, shares_of(j)))
+            .collect();
+        let first_shares = shares_of(0);
         let mut peak = 0.0f64;
         let h = opts.step_s;
         for hour in 0..hours {
             heater_hour.iter_mut().for_each(|v| *v = 0.0);
             for s in 0..sph {
                 let k = hour * sph + s;
-                advance(&mut stepper, k, &mut u_k);
-                let t_out = 0.5
-                    * (u_k.first().copied().unwrap_or(f64::NAN)
-                        + row(k + 1).first().copied().unwrap_or(f64::NAN));
-                for &(j, hi) in &heater_list {
-                    let q_j = net.injected[j] * u_k[j] * h;
-                    heater_j[hi] += q_j;
-                    heater_hour[hi] += u_k[j] / sph as f64;
-                    purchased_j[hi] += q_j / cop_at(&model.heaters[hi], t_out);
+                for (j, hi, sh) in &heater_shares {
+                    let u_j = applied(k, *j, sh);
+                    if u_j == 0.0 {
+                        // Nothing to add (the sums below would each add an exact 0).
+                        continue;
+                    }
+                    let heater = &model.heaters[*hi];
+                    let q_j = net.injected[*j] * u_j * h;
+                    heater_j[*hi] += q_j;
+                    heater_hour[*hi] += u_j / sph as f64;
+                    let cop = if heater.cop_curve.is_empty() {
+                        heater.efficiency
+                    } else {
+                        let t_out = 0.5
+                            * (if m > 0 {
+                                applied(k, 0, &first_shares)
+                            } else {
+                                f64::NAN
+                            } + row(k + 1).first().copied().unwrap_or(f64::NAN));
+                        cop_at(heater, t_out)
+                    };
+                    purchased_j[*hi] += q_j / cop;
                 }
             }
-            min_air = stepper.instant().iter().copied().fold(min_air, f64::min);
+            let k_end = hour * sph + sph - 1;
+            min_air = air[k_end * p_i..(k_end + 1) * p_i]
+                .iter()
+                .copied()
+                .fold(min_air, f64::min);
             let total: f64 = zone_heaters
                 .iter()
                 .map(|hs| hs.iter().map(|&hi| heater_hour[hi]).sum::<f64>())

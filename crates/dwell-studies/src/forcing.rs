@@ -87,10 +87,13 @@ pub fn schedule_before(s: &WeeklySchedule, t: NaiveDateTime) -> f64 {
 /// The deep-ground temperature of a run (°C): the site's `deep_ground_c`, else the mean of the
 /// weather's ground column, else the weather's mean air temperature.
 pub fn ground_temperature(model: &ModelFile, weather: &WeatherSeries) -> f64 {
-    model.site.deep_ground_c.unwrap_or_else(|| match &weather.ground_c {
-        Some(g) => g.iter().sum::<f64>() / g.len() as f64,
-        None => weather.annual_mean_air_c(),
-    })
+    model
+        .site
+        .deep_ground_c
+        .unwrap_or_else(|| match &weather.ground_c {
+            Some(g) => g.iter().sum::<f64>() / g.len() as f64,
+            None => weather.annual_mean_air_c(),
+        })
 }
 
 /// The model's schedule `id`, ready to evaluate (None: no id, unknown id or invalid schedule,
@@ -103,14 +106,23 @@ pub fn model_schedule(m: &ModelFile, id: &Option<String>) -> Option<WeeklySchedu
 
 impl Forcing {
     /// Prepares the forcing of `house` (compiled from `model`) by `weather`.
-    pub fn new(model: &ModelFile, house: &House, weather: &WeatherSeries, step_s: f64, sky: SkyModel) -> Forcing {
+    pub fn new(
+        model: &ModelFile,
+        house: &House,
+        weather: &WeatherSeries,
+        step_s: f64,
+        sky: SkyModel,
+    ) -> Forcing {
         let site = dwell_weather::Site {
             latitude_deg: model.site.latitude_deg,
             longitude_deg: model.site.longitude_deg,
             elevation_m: model.site.elevation_m,
             albedo: model.site.ground_albedo,
         };
-        let needs_sun = house.inputs.iter().any(|r| matches!(r, InputRole::SolarPlane { .. }));
+        let needs_sun = house
+            .inputs
+            .iter()
+            .any(|r| matches!(r, InputRole::SolarPlane { .. }));
         let sun = needs_sun.then(|| SunTable::new(weather, &site));
         let ground_c = ground_temperature(model, weather);
         let mut f = Forcing {
@@ -134,15 +146,26 @@ impl Forcing {
                     (None, s) => model_schedule(model, s),
                 })
                 .collect(),
-            power: model.heaters.iter().map(|h| model_schedule(model, &h.power_schedule)).collect(),
-            occupancy: model.zones.iter().map(|z| model_schedule(model, &z.occupancy)).collect(),
+            power: model
+                .heaters
+                .iter()
+                .map(|h| model_schedule(model, &h.power_schedule))
+                .collect(),
+            occupancy: model
+                .zones
+                .iter()
+                .map(|z| model_schedule(model, &z.occupancy))
+                .collect(),
         };
         for (j, role) in house.inputs.iter().enumerate() {
             match role {
                 InputRole::OutdoorAir => f.outdoor.push(j),
                 InputRole::Ground => f.ground.push(j),
                 InputRole::Boundary { temperature_c } => f.fixed.push((j, *temperature_c)),
-                InputRole::SolarPlane { tilt_deg, azimuth_deg } => {
+                InputRole::SolarPlane {
+                    tilt_deg,
+                    azimuth_deg,
+                } => {
                     let s = sun.as_ref().expect("sun table computed when planes exist");
                     f.planes.push((j, s.plane(*tilt_deg, *azimuth_deg, sky)));
                 }
@@ -160,8 +183,17 @@ impl Forcing {
                         .collect();
                     f.scheduled.push((j, terms));
                 }
-                InputRole::RawHeat { power_w, schedule: s } => {
-                    f.scheduled.push((j, vec![Scheduled { power_w: *power_w, schedule: model_schedule(model, s) }]));
+                InputRole::RawHeat {
+                    power_w,
+                    schedule: s,
+                } => {
+                    f.scheduled.push((
+                        j,
+                        vec![Scheduled {
+                            power_w: *power_w,
+                            schedule: model_schedule(model, s),
+                        }],
+                    ));
                 }
                 InputRole::Heater { .. } => {}
             }

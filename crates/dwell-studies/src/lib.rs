@@ -16,15 +16,15 @@ pub use simulate::{simulate, Control, SimOptions, SimResult, StudyError};
 
 /// The caution printed with every output that sizes equipment or judges comfort.
 pub const CAUTION: &str = "Estimates for planning only: confirm sizes and comfort under local codes and with a licensed professional before buying or installing equipment.";
-pub mod design_weather;
-pub mod steady_load;
-pub mod size;
-pub mod zone_schedules;
-pub mod trace;
-pub mod setback;
-pub mod outage;
 pub mod compare;
+pub mod design_weather;
+pub mod fastpath;
 #[cfg(test)]
 mod monotone_tests;
+pub mod outage;
+pub mod setback;
+pub mod size;
+pub mod steady_load;
 pub mod sweep;
-pub mod fastpath;
+pub mod trace;
+pub mod zone_schedules;

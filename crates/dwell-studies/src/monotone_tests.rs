@@ -40,7 +40,10 @@ fn heating_kwh(wool_m: f64, night_c: f64) -> f64 {
         warmup_days: 3,
         ..SimOptions::default()
     };
-    simulate(&m, &h, &w, &opts).unwrap().summary.total_heating_kwh
+    simulate(&m, &h, &w, &opts)
+        .unwrap()
+        .summary
+        .total_heating_kwh
 }
 
 fn runner() -> TestRunner {

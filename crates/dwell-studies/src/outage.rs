@@ -65,7 +65,9 @@ impl OutageOptions {
         if !(self.hours > 0.0 && self.hours <= 720.0) {
             return bad(format!("--hours {} is outside 0…720 h", self.hours));
         }
-        if !(-20.0..=25.0).contains(&self.damp_below_c) || !(-20.0..=25.0).contains(&self.frost_below_c) {
+        if !(-20.0..=25.0).contains(&self.damp_below_c)
+            || !(-20.0..=25.0).contains(&self.frost_below_c)
+        {
             return bad(format!(
                 "thresholds --damp-below {} °C and --frost-below {} °C must lie within -20…25 °C",
                 self.damp_below_c, self.frost_below_c
@@ -151,7 +153,12 @@ fn no_trace() -> Trace {
 }
 
 /// Runs the outage study.
-pub fn outage(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: &OutageOptions) -> Result<OutageStudy, StudyError> {
+pub fn outage(
+    model: &ModelFile,
+    house: &House,
+    weather: &WeatherSeries,
+    opts: &OutageOptions,
+) -> Result<OutageStudy, StudyError> {
     opts.validate()?;
     let mut run = Runner::new(model, house, weather, opts.step_s)?;
     let f = &run.forcing;
@@ -168,7 +175,10 @@ pub fn outage(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: &
             last.format("%Y-%m-%dT%H:%M")
         )));
     }
-    let i0 = (0..n).rev().find(|&i| f.local(f.times[i]) <= lead).unwrap_or(0);
+    let i0 = (0..n)
+        .rev()
+        .find(|&i| f.local(f.times[i]) <= lead)
+        .unwrap_or(0);
     let t0 = f.local(f.times[i0]);
     let step_ms = (opts.step_s * 1000.0) as i64;
     let k_a = ((opts.start - t0).num_milliseconds() as f64 / step_ms as f64).round() as usize;
@@ -194,10 +204,15 @@ pub fn outage(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: &
             end_c: t[k_b],
             lowest_c: t.iter().copied().fold(f64::INFINITY, f64::min),
             comfort_min_c,
-            hours_to_below_comfort_h: comfort_min_c.and_then(|c| hours_until_below(&tr.local, t, k_a, k_b, c)),
+            hours_to_below_comfort_h: comfort_min_c
+                .and_then(|c| hours_until_below(&tr.local, t, k_a, k_b, c)),
             hours_to_damp_risk_h: hours_until_below(&tr.local, t, k_a, k_b, opts.damp_below_c),
             hours_to_frost_risk_h: hours_until_below(&tr.local, t, k_a, k_b, opts.frost_below_c),
-            recovered_after_h: if run.channel_zone.contains(&zi) { recovered_after_h } else { None },
+            recovered_after_h: if run.channel_zone.contains(&zi) {
+                recovered_after_h
+            } else {
+                None
+            },
         });
     }
     Ok(OutageStudy {
@@ -250,13 +265,19 @@ mod tests {
         for k in k_a..k_a + 60 {
             let t_h = (k - k_a) as f64 / 6.0;
             let want = 20.0 * (-t_h / tau_h).exp();
-            assert!((tr.zone_c[0][k] - want).abs() < 1e-9, "t {t_h} h: {} vs {want}", tr.zone_c[0][k]);
+            assert!(
+                (tr.zone_c[0][k] - want).abs() < 1e-9,
+                "t {t_h} h: {} vs {want}",
+                tr.zone_c[0][k]
+            );
         }
         let z = &o.zones[0];
         // crossings by linear interpolation between 10-min steps: error ≤ Δt²/(8τ) ≈ 0.001 h
         assert!((z.hours_to_damp_risk_h.unwrap() - tau_h * (20.0f64 / 12.0).ln()).abs() < 0.002);
         assert!((z.hours_to_frost_risk_h.unwrap() - tau_h * (20.0f64 / 5.0).ln()).abs() < 0.002);
-        assert!((z.hours_to_below_comfort_h.unwrap() - tau_h * (20.0f64 / 18.0).ln()).abs() < 0.002);
+        assert!(
+            (z.hours_to_below_comfort_h.unwrap() - tau_h * (20.0f64 / 18.0).ln()).abs() < 0.002
+        );
         // power back after 10 h: capacity 5000 W ≫ 200 W loss, so back within one step
         assert!(z.recovered_after_h.unwrap() <= 1.0 / 6.0 + 1e-9);
     }
@@ -266,7 +287,11 @@ mod tests {
         let start = spell_start_day().and_hms_opt(6, 0, 0).unwrap();
         let mut o = OutageOptions::new(start, 10.0);
         o.frost_below_c = 14.0;
-        assert!(o.validate().unwrap_err().to_string().contains("--frost-below 14"));
+        assert!(o
+            .validate()
+            .unwrap_err()
+            .to_string()
+            .contains("--frost-below 14"));
         o.frost_below_c = 5.0;
         o.hours = 0.0;
         assert!(o.validate().unwrap_err().to_string().contains("--hours"));

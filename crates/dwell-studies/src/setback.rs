@@ -163,7 +163,12 @@ fn hours(a: chrono::NaiveDateTime, b: chrono::NaiveDateTime) -> f64 {
 }
 
 /// Runs the setback study.
-pub fn setback(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: &SetbackOptions) -> Result<SetbackStudy, StudyError> {
+pub fn setback(
+    model: &ModelFile,
+    house: &House,
+    weather: &WeatherSeries,
+    opts: &SetbackOptions,
+) -> Result<SetbackStudy, StudyError> {
     let mut run = Runner::new(model, house, weather, opts.step_s)?;
     let (start, end) = period_stamps(&run.forcing, opts.from, opts.to)?;
     let sph = run.forcing.steps_per_hour;
@@ -205,7 +210,11 @@ pub fn setback(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: 
             continue;
         }
         let k0 = a.local.iter().position(|t| *t >= noon).expect("in range");
-        let k1 = a.local.iter().position(|t| *t >= next_noon).expect("in range");
+        let k1 = a
+            .local
+            .iter()
+            .position(|t| *t >= next_noon)
+            .expect("in range");
         let mut zones = Vec::new();
         for (c, &zi) in channel_zone.iter().enumerate() {
             let z = &house.zones[zi];
@@ -216,7 +225,10 @@ pub fn setback(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: 
             let sp_max = win.clone().map(|k| sp[k]).fold(f64::NEG_INFINITY, f64::max);
             let (lo_k, lo) = (k0..=k1)
                 .map(|k| (k, t[k]))
-                .fold((k0, f64::INFINITY), |acc, x| if x.1 < acc.1 { x } else { acc });
+                .fold(
+                    (k0, f64::INFINITY),
+                    |acc, x| if x.1 < acc.1 { x } else { acc },
+                );
             let heat: f64 = win.clone().map(|k| a.heat_w[zi][k]).sum::<f64>() * step_h / 1000.0;
             let cont: f64 = win.clone().map(|k| b.heat_w[zi][k]).sum::<f64>() * step_h / 1000.0;
             let below = win
@@ -262,7 +274,9 @@ pub fn setback(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: 
                     }
                     k
                 } else {
-                    win.clone().find(|&k| at_min(k)).expect("minimum is attained")
+                    win.clone()
+                        .find(|&k| at_min(k))
+                        .expect("minimum is attained")
                 };
                 nz.setback_c = Some(sp_min);
                 nz.setback_from = Some(fmt(a.local[k_drop - 1]));
@@ -299,9 +313,15 @@ pub fn setback(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: 
                                 return t[k_by] >= target - AT_SETPOINT_K;
                             }
                             run.set_state(a.state(s));
-                            let tr = run.run(start, s, k_by - s, false, |_, spc: &mut [f64], _: &mut [bool]| {
-                                spc[c] = spc[c].max(target);
-                            });
+                            let tr = run.run(
+                                start,
+                                s,
+                                k_by - s,
+                                false,
+                                |_, spc: &mut [f64], _: &mut [bool]| {
+                                    spc[c] = spc[c].max(target);
+                                },
+                            );
                             tr.zone_c[zi][k_by - s] >= target - AT_SETPOINT_K
                         };
                         let latest = if ok(k_by) {
@@ -338,7 +358,10 @@ pub fn setback(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: 
         .iter()
         .map(|&zi| {
             let id = &house.zones[zi].id;
-            let rows: Vec<&NightZone> = nights.iter().flat_map(|n| n.zones.iter().filter(|z| &z.zone == id)).collect();
+            let rows: Vec<&NightZone> = nights
+                .iter()
+                .flat_map(|n| n.zones.iter().filter(|z| &z.zone == id))
+                .collect();
             let heat: f64 = rows.iter().map(|r| r.heat_kwh).sum();
             let cont: f64 = rows.iter().map(|r| r.continuous_kwh).sum();
             SetbackTotal {
@@ -356,7 +379,8 @@ pub fn setback(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: 
     let tc: f64 = totals.iter().map(|t| t.continuous_kwh).sum();
     if nights.is_empty() {
         return Err(StudyError::Option(
-            "the period holds no night from noon to noon; give at least two days with --from/--to".into(),
+            "the period holds no night from noon to noon; give at least two days with --from/--to"
+                .into(),
         ));
     }
     Ok(SetbackStudy {

@@ -222,7 +222,6 @@ pub(crate) fn cop_at(h: &dwell_model::file::Heater, t: f64) -> f64 {
     c[c.len() - 1].cop
 }
 
-
 /// The capacity-limited thermostat's channels of a house: one per zone whose heaters have a
 /// setpoint, driving those heaters together at the same fraction of their capacities.
 pub struct ThermostatChannels {
@@ -236,8 +235,16 @@ pub struct ThermostatChannels {
 
 /// Builds the thermostat channels of `house`; `controlled(heater index)` says whether a heater
 /// follows a setpoint. Heaters with no capacity are left out.
-pub fn thermostat_channels(model: &ModelFile, house: &House, controlled: &dyn Fn(usize) -> bool) -> ThermostatChannels {
-    let mut out = ThermostatChannels { channels: Vec::new(), heaters: Vec::new(), zones: Vec::new() };
+pub fn thermostat_channels(
+    model: &ModelFile,
+    house: &House,
+    controlled: &dyn Fn(usize) -> bool,
+) -> ThermostatChannels {
+    let mut out = ThermostatChannels {
+        channels: Vec::new(),
+        heaters: Vec::new(),
+        zones: Vec::new(),
+    };
     for (zi, z) in house.zones.iter().enumerate() {
         let hs: Vec<usize> = model
             .heaters
@@ -250,7 +257,10 @@ pub fn thermostat_channels(model: &ModelFile, house: &House, controlled: &dyn Fn
             continue;
         }
         out.channels.push(ControlChannel {
-            weights: hs.iter().map(|&hi| (house.heater_inputs[hi], model.heaters[hi].capacity_w)).collect(),
+            weights: hs
+                .iter()
+                .map(|&hi| (house.heater_inputs[hi], model.heaters[hi].capacity_w))
+                .collect(),
             output: zi,
         });
         out.heaters.push(hs);
@@ -262,8 +272,12 @@ pub fn thermostat_channels(model: &ModelFile, house: &House, controlled: &dyn Fn
 /// Warnings when the weather was made for another place or time zone than the model's site.
 pub fn site_warnings(model: &ModelFile, weather: &WeatherSeries) -> Vec<String> {
     let mut out = Vec::new();
-    let lat = weather.metadata_value("latitude_deg").and_then(|v| v.trim().parse::<f64>().ok());
-    let lon = weather.metadata_value("longitude_deg").and_then(|v| v.trim().parse::<f64>().ok());
+    let lat = weather
+        .metadata_value("latitude_deg")
+        .and_then(|v| v.trim().parse::<f64>().ok());
+    let lon = weather
+        .metadata_value("longitude_deg")
+        .and_then(|v| v.trim().parse::<f64>().ok());
     if let (Some(lat), Some(lon)) = (lat, lon) {
         let s = &model.site;
         if (lat - s.latitude_deg).abs() > 1.0 || (lon - s.longitude_deg).abs() > 1.0 {
@@ -284,15 +298,25 @@ pub fn site_warnings(model: &ModelFile, weather: &WeatherSeries) -> Vec<String> 
 }
 
 /// Runs a simulation of `house` (compiled from `model`) over `weather`.
-pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts: &SimOptions) -> Result<SimResult, StudyError> {
+pub fn simulate(
+    model: &ModelFile,
+    house: &House,
+    weather: &WeatherSeries,
+    opts: &SimOptions,
+) -> Result<SimResult, StudyError> {
     let step_min = opts.step_s / 60.0;
-    if !ALLOWED_STEPS_MIN.iter().any(|&m| (m as f64 - step_min).abs() < 1e-9) {
+    if !ALLOWED_STEPS_MIN
+        .iter()
+        .any(|&m| (m as f64 - step_min).abs() < 1e-9)
+    {
         return Err(StudyError::Option(format!(
             "a step of {step_min} minutes is not allowed; use one of {ALLOWED_STEPS_MIN:?} (it must divide one hour)"
         )));
     }
     if weather.len() < 2 {
-        return Err(StudyError::Option("the weather has fewer than two hours".into()));
+        return Err(StudyError::Option(
+            "the weather has fewer than two hours".into(),
+        ));
     }
     let forcing = Forcing::new(model, house, weather, opts.step_s, opts.sky);
     let (start, end) = crate::trace::period_stamps(&forcing, opts.from, opts.to)?;
@@ -303,7 +327,11 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
     let disc = Discretization::new(&net.system, opts.step_s, opts.route)?;
 
     // Readouts: zone air at step ends; boundary flows by group as exact step means.
-    let zone_rows = Readout::nodes(&house.zones.iter().map(|z| z.air_state).collect::<Vec<_>>(), n, m);
+    let zone_rows = Readout::nodes(
+        &house.zones.iter().map(|z| z.air_state).collect::<Vec<_>>(),
+        n,
+        m,
+    );
     let groups: Vec<&String> = net.boundary_flow.keys().collect();
     let gx = DMatrix::from_fn(groups.len(), n, |g, i| net.boundary_flow[groups[g]].x[i]);
     let gu = DMatrix::from_fn(groups.len(), m, |g, j| net.boundary_flow[groups[g]].u[j]);
@@ -311,14 +339,22 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
     let mut stepper = Stepper::new(&disc, &zone_rows, &flows)?;
 
     // Thermostat channels: one per zone with setpoint heaters.
-    let ThermostatChannels { channels, heaters: channel_heaters, .. } =
-        thermostat_channels(model, house, &|hi| forcing.setpoints[hi].is_some());
+    let ThermostatChannels {
+        channels,
+        heaters: channel_heaters,
+        ..
+    } = thermostat_channels(model, house, &|hi| forcing.setpoints[hi].is_some());
     let q = channels.len();
     let use_channels = matches!(opts.control, Control::Thermostat | Control::OnOff) && q > 0;
     if use_channels {
         stepper = stepper.with_control(&channels)?;
     }
-    let dead_band = model.heaters.iter().map(|h| h.dead_band_k).fold(0.0, f64::max).max(0.1);
+    let dead_band = model
+        .heaters
+        .iter()
+        .map(|h| h.dead_band_k)
+        .fold(0.0, f64::max)
+        .max(0.1);
     let mut onoff = OnOffThermostat::new(q.max(1), dead_band)?;
 
     // Buffers (the loop below allocates nothing beyond the preallocated results).
@@ -341,7 +377,8 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
                 Control::Schedule => {
                     for (hi, h) in model.heaters.iter().enumerate() {
                         if let Some(s) = &forcing.power[hi] {
-                            u_k[house.heater_inputs[hi]] = forcing.step_mean(s, $s0, k).clamp(0.0, h.capacity_w);
+                            u_k[house.heater_inputs[hi]] =
+                                forcing.step_mean(s, $s0, k).clamp(0.0, h.capacity_w);
                         }
                     }
                     stepper.step(&u_k, &u_next)
@@ -350,13 +387,32 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
                     for c in 0..q {
                         setpoint[c] = channel_heaters[c]
                             .iter()
-                            .map(|&hi| forcing.at_step_end(forcing.setpoints[hi].as_ref().expect("setpoint heater"), $s0, k))
+                            .map(|&hi| {
+                                forcing.at_step_end(
+                                    forcing.setpoints[hi].as_ref().expect("setpoint heater"),
+                                    $s0,
+                                    k,
+                                )
+                            })
                             .fold(f64::NEG_INFINITY, f64::max);
                     }
                     if opts.control == Control::Thermostat {
-                        stepper.step_thermostat(&mut u_k, &u_next, &setpoint, &enabled, &mut fraction);
+                        stepper.step_thermostat(
+                            &mut u_k,
+                            &u_next,
+                            &setpoint,
+                            &enabled,
+                            &mut fraction,
+                        );
                     } else {
-                        stepper.step_on_off(&mut onoff, &mut u_k, &u_next, &setpoint, &enabled, &mut fraction);
+                        stepper.step_on_off(
+                            &mut onoff,
+                            &mut u_k,
+                            &u_next,
+                            &setpoint,
+                            &enabled,
+                            &mut fraction,
+                        );
                     }
                 }
                 _ => stepper.step(&u_k, &u_next),
@@ -373,7 +429,11 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
             start_note = format!("every node at {t} °C");
         }
         None => {
-            let first = house.zones.first().map(|z| z.design_indoor_c).unwrap_or(20.0);
+            let first = house
+                .zones
+                .first()
+                .map(|z| z.design_indoor_c)
+                .unwrap_or(20.0);
             stepper.set_state(&vec![first; n]);
             let window = (opts.warmup_days * 24).min(end - start) * sph;
             let mut prev = vec![first; n];
@@ -384,7 +444,11 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
                     advance!(start, k);
                 }
                 stepper.state_into(&mut x);
-                change = x.iter().zip(&prev).map(|(a, b)| (a - b).abs()).fold(0.0, f64::max);
+                change = x
+                    .iter()
+                    .zip(&prev)
+                    .map(|(a, b)| (a - b).abs())
+                    .fold(0.0, f64::max);
                 prev.copy_from_slice(&x);
                 cycles += 1;
             }
@@ -410,13 +474,22 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
         .iter()
         .enumerate()
         .filter(|(_, r)| {
-            matches!(r, dwell_model::InputRole::OutdoorAir | dwell_model::InputRole::Ground | dwell_model::InputRole::Boundary { .. })
+            matches!(
+                r,
+                dwell_model::InputRole::OutdoorAir
+                    | dwell_model::InputRole::Ground
+                    | dwell_model::InputRole::Boundary { .. }
+            )
         })
         .map(|(j, _)| j)
         .collect();
     let mut u_stamp = vec![0.0; m];
     stepper.state_into(&mut x);
-    let stored0: f64 = x.iter().zip(&net.system.capacitance).map(|(t, c)| t * c).sum();
+    let stored0: f64 = x
+        .iter()
+        .zip(&net.system.capacitance)
+        .map(|(t, c)| t * c)
+        .sum();
     times.push(forcing.times[start]);
     outdoor.push(forcing.air_c[start]);
     for (zi, z) in house.zones.iter().enumerate() {
@@ -430,7 +503,7 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
     let mut heater_hour = vec![0.0; nh];
     let mut group_j = vec![0.0; groups.len()];
     let mut heat_in_j = [0.0f64; 4]; // heating, gains, solar through glazing, other
-    // Sun on opaque surfaces, netted against the group it lands on.
+                                     // Sun on opaque surfaces, netted against the group it lands on.
     let solar_to_group: Vec<(usize, usize, f64)> = house
         .solar_targets
         .iter()
@@ -438,7 +511,14 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
         .filter_map(|(j, g, a)| groups.iter().position(|x| x == g).map(|gi| (*j, gi, *a)))
         .collect();
     let glazing: Vec<f64> = (0..m)
-        .map(|j| house.solar_targets.iter().filter(|(jj, g, _)| *jj == j && *g == "windows").map(|(_, _, a)| a).sum())
+        .map(|j| {
+            house
+                .solar_targets
+                .iter()
+                .filter(|(jj, g, _)| *jj == j && *g == "windows")
+                .map(|(_, _, a)| a)
+                .sum()
+        })
         .collect();
     let mut opaque_sun_j = 0.0;
     let mut hour_inputs = vec![0.0; m];
@@ -461,7 +541,9 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
                         heat_in_j[0] += q_j;
                     }
                     dwell_model::InputRole::Gains { .. } => heat_in_j[1] += q_j,
-                    dwell_model::InputRole::SolarPlane { .. } => heat_in_j[2] += glazing[j] * u_k[j] * h,
+                    dwell_model::InputRole::SolarPlane { .. } => {
+                        heat_in_j[2] += glazing[j] * u_k[j] * h
+                    }
                     dwell_model::InputRole::RawHeat { .. } => heat_in_j[3] += q_j,
                     _ => {}
                 }
@@ -490,7 +572,13 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
             heater_peak[hi] = heater_peak[hi].max(*hv);
         }
         for (zi, z) in house.zones.iter().enumerate() {
-            let w: f64 = model.heaters.iter().enumerate().filter(|(_, hh)| hh.zone == z.id).map(|(hi, _)| heater_hour[hi]).sum();
+            let w: f64 = model
+                .heaters
+                .iter()
+                .enumerate()
+                .filter(|(_, hh)| hh.zone == z.id)
+                .map(|(hi, _)| heater_hour[hi])
+                .sum();
             zone_heat[zi].push(w);
         }
     }
@@ -503,10 +591,17 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
     inputs_rows.extend_from_slice(&hour_inputs);
 
     stepper.state_into(&mut x);
-    let stored1: f64 = x.iter().zip(&net.system.capacitance).map(|(t, c)| t * c).sum();
+    let stored1: f64 = x
+        .iter()
+        .zip(&net.system.capacitance)
+        .map(|(t, c)| t * c)
+        .sum();
     let kwh = |j: f64| j / 3.6e6;
-    let losses: std::collections::BTreeMap<String, f64> =
-        groups.iter().zip(&group_j).map(|(g, j)| ((*g).clone(), kwh(*j))).collect();
+    let losses: std::collections::BTreeMap<String, f64> = groups
+        .iter()
+        .zip(&group_j)
+        .map(|(g, j)| ((*g).clone(), kwh(*j)))
+        .collect();
     let heat_in: f64 = heat_in_j.iter().sum();
     let out: f64 = group_j.iter().sum();
     let stored = stored1 - stored0;
@@ -525,11 +620,19 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
                 None => true,
             })
             .collect();
-        let comfort = z.comfort.map(|band| Comfort::evaluate(band, &times[1..], &temps[1..], &occupied[1..]));
+        let comfort = z
+            .comfort
+            .map(|band| Comfort::evaluate(band, &times[1..], &temps[1..], &occupied[1..]));
         if let Some(c) = &comfort {
             warnings.extend(c.warnings(&z.id));
         }
-        let heat: f64 = model.heaters.iter().enumerate().filter(|(_, hh)| hh.zone == z.id).map(|(hi, _)| heater_j[hi]).sum();
+        let heat: f64 = model
+            .heaters
+            .iter()
+            .enumerate()
+            .filter(|(_, hh)| hh.zone == z.id)
+            .map(|(hi, _)| heater_j[hi])
+            .sum();
         zones.push(ZoneResult {
             zone: z.id.clone(),
             heating_kwh: kwh(heat) + 0.0,
@@ -565,7 +668,9 @@ pub fn simulate(model: &ModelFile, house: &House, weather: &WeatherSeries, opts:
             }
         })
         .collect();
-    let total_peak = (1..=hours).map(|i| zone_heat.iter().map(|z| z[i]).sum::<f64>()).fold(0.0, f64::max);
+    let total_peak = (1..=hours)
+        .map(|i| zone_heat.iter().map(|z| z[i]).sum::<f64>())
+        .fold(0.0, f64::max);
     for hr in &heaters {
         if let Some(c) = hr.cycles_per_hour {
             if c > 3.0 {

@@ -96,13 +96,22 @@ impl SizeOptions {
     pub fn validate(&self) -> Result<(), StudyError> {
         let bad = |m: String| Err(StudyError::Option(m));
         if !(0.5..=24.0).contains(&self.recovery_h) {
-            return bad(format!("--recovery {} h is outside 0.5…24 h", self.recovery_h));
+            return bad(format!(
+                "--recovery {} h is outside 0.5…24 h",
+                self.recovery_h
+            ));
         }
         if !(1.0..=2.0).contains(&self.margin) {
-            return bad(format!("--margin {} is outside 1…2 (1.1 adds 10 %)", self.margin));
+            return bad(format!(
+                "--margin {} is outside 1…2 (1.1 adds 10 %)",
+                self.margin
+            ));
         }
         if !(10.0..=10_000.0).contains(&self.size_step_w) {
-            return bad(format!("--size-step {} W is outside 10…10000 W", self.size_step_w));
+            return bad(format!(
+                "--size-step {} W is outside 10…10000 W",
+                self.size_step_w
+            ));
         }
         if let Some(g) = self.ground_c {
             if !(-20.0..=30.0).contains(&g) {
@@ -249,7 +258,9 @@ fn thermostat_zones(model: &ModelFile, house: &House) -> Vec<Sized> {
             .heaters
             .iter()
             .enumerate()
-            .filter(|(_, h)| h.zone == z.id && (h.setpoint_c.is_some() || h.setpoint_schedule.is_some()))
+            .filter(|(_, h)| {
+                h.zone == z.id && (h.setpoint_c.is_some() || h.setpoint_schedule.is_some())
+            })
             .map(|(i, _)| i)
             .collect();
         if hs.is_empty() {
@@ -292,7 +303,12 @@ pub const CAPACITY_FRACTIONS: [f64; 10] = [0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 1
 
 /// Occupied zone-hours of a run below the comfort target by more than
 /// [`COMFORT_TOLERANCE_K`] (same stamps and excuses as [`comfort_test`]).
-pub fn occupied_hours_below(model: &ModelFile, house: &House, run: &SimResult, recovery_h: f64) -> usize {
+pub fn occupied_hours_below(
+    model: &ModelFile,
+    house: &House,
+    run: &SimResult,
+    recovery_h: f64,
+) -> usize {
     let sch = ZoneSchedules::new(model);
     let mut n = 0;
     for (zi, z) in house.zones.iter().enumerate() {
@@ -325,12 +341,20 @@ pub struct ComfortTest {
 impl ComfortTest {
     /// True when no checked zone falls short by more than [`COMFORT_TOLERANCE_K`].
     pub fn passes(&self) -> bool {
-        self.worst_shortfall_k.iter().flatten().all(|&d| d <= COMFORT_TOLERANCE_K)
+        self.worst_shortfall_k
+            .iter()
+            .flatten()
+            .all(|&d| d <= COMFORT_TOLERANCE_K)
     }
 }
 
 /// Evaluates the comfort test on a run (see the module documentation).
-pub fn comfort_test(model: &ModelFile, house: &House, run: &SimResult, recovery_h: f64) -> ComfortTest {
+pub fn comfort_test(
+    model: &ModelFile,
+    house: &House,
+    run: &SimResult,
+    recovery_h: f64,
+) -> ComfortTest {
     let sch = ZoneSchedules::new(model);
     let mut worst = vec![None; house.zones.len()];
     for (zi, z) in house.zones.iter().enumerate() {
@@ -355,7 +379,9 @@ pub fn comfort_test(model: &ModelFile, house: &House, run: &SimResult, recovery_
         }
         worst[zi] = Some(if w.is_finite() { w } else { f64::NEG_INFINITY });
     }
-    ComfortTest { worst_shortfall_k: worst }
+    ComfortTest {
+        worst_shortfall_k: worst,
+    }
 }
 
 /// The model for the design spell: gains removed unless kept.
@@ -418,17 +444,23 @@ pub fn thermostat_zone_ids(model: &ModelFile, house: &House) -> Vec<String> {
 
 /// The ground temperature of the design (°C).
 pub fn design_ground_c(model: &ModelFile, year: Option<&WeatherSeries>, opts: &SizeOptions) -> f64 {
-    opts.ground_c.or(model.site.deep_ground_c).unwrap_or_else(|| {
-        let w = year.cloned().unwrap_or_else(dwell_weather::default_weather);
-        match &w.ground_c {
-            Some(g) => g.iter().sum::<f64>() / g.len() as f64,
-            None => w.annual_mean_air_c(),
-        }
-    })
+    opts.ground_c
+        .or(model.site.deep_ground_c)
+        .unwrap_or_else(|| {
+            let w = year.cloned().unwrap_or_else(dwell_weather::default_weather);
+            match &w.ground_c {
+                Some(g) => g.iter().sum::<f64>() / g.len() as f64,
+                None => w.annual_mean_air_c(),
+            }
+        })
 }
 
 /// The design spell of `opts` for `model`.
-pub fn design_spell(model: &ModelFile, year: Option<&WeatherSeries>, opts: &SizeOptions) -> Result<WeatherSeries, StudyError> {
+pub fn design_spell(
+    model: &ModelFile,
+    year: Option<&WeatherSeries>,
+    opts: &SizeOptions,
+) -> Result<WeatherSeries, StudyError> {
     DesignSpell {
         design_c: opts.design_c,
         swing_k: opts.swing_k,
@@ -503,7 +535,12 @@ fn round_up(w: f64, step: f64) -> f64 {
 }
 
 /// Sizes the heaters of `house` (compiled from `model`); `year` adds the load duration curve.
-pub fn size(model: &ModelFile, house: &House, year: Option<&WeatherSeries>, opts: &SizeOptions) -> Result<Sizing, StudyError> {
+pub fn size(
+    model: &ModelFile,
+    house: &House,
+    year: Option<&WeatherSeries>,
+    opts: &SizeOptions,
+) -> Result<Sizing, StudyError> {
     opts.validate()?;
     let spell = design_spell(model, year, opts)?;
     let ground_c = design_ground_c(model, year, opts);
@@ -515,7 +552,10 @@ pub fn size(model: &ModelFile, house: &House, year: Option<&WeatherSeries>, opts
         },
     )?;
     let sized = thermostat_zones(model, house);
-    let base: Vec<f64> = sized.iter().map(|s| steady.zones[s.zone].steady_w.max(100.0)).collect();
+    let base: Vec<f64> = sized
+        .iter()
+        .map(|s| steady.zones[s.zone].steady_w.max(100.0))
+        .collect();
     let dynamic = dynamic_requirement(model, house, &spell, &base, opts)?;
     let mut warnings = Vec::new();
     if dynamic.is_none() {
@@ -529,7 +569,14 @@ pub fn size(model: &ModelFile, house: &House, year: Option<&WeatherSeries>, opts
     // simultaneous peak at the dynamic capacities
     let simultaneous_peak_w = match &dynamic {
         Some(c) if !c.is_empty() => {
-            let r = run_with(&m, house, &sized, &c.iter().map(|v| v.max(1.0)).collect::<Vec<_>>(), &spell, &o)?;
+            let r = run_with(
+                &m,
+                house,
+                &sized,
+                &c.iter().map(|v| v.max(1.0)).collect::<Vec<_>>(),
+                &spell,
+                &o,
+            )?;
             (1..r.times.len())
                 .map(|i| r.zone_heating_w.iter().map(|z| z[i]).sum::<f64>())
                 .fold(0.0, f64::max)
@@ -551,12 +598,22 @@ pub fn size(model: &ModelFile, house: &House, year: Option<&WeatherSeries>, opts
         let st = &steady.zones[zi];
         let k = sized.iter().position(|s| s.zone == zi);
         let dynamic_w = k.and_then(|k| dynamic.as_ref().map(|d| d[k]));
-        let hold_w = k.map(|_| hold_run.zone_heating_w[zi][1..].iter().copied().fold(0.0, f64::max));
+        let hold_w = k.map(|_| {
+            hold_run.zone_heating_w[zi][1..]
+                .iter()
+                .copied()
+                .fold(0.0, f64::max)
+        });
         let reheat_share = match (dynamic_w, hold_w) {
             (Some(d), Some(h)) if d > 0.0 => Some(((d - h) / d).max(0.0)),
             _ => None,
         };
-        let installed: f64 = model.heaters.iter().filter(|h| h.zone == z.id).map(|h| h.capacity_w).sum();
+        let installed: f64 = model
+            .heaters
+            .iter()
+            .filter(|h| h.zone == z.id)
+            .map(|h| h.capacity_w)
+            .sum();
         let need = st.steady_w.max(dynamic_w.unwrap_or(0.0));
         let heated = z.heated || k.is_some();
         let recommended_w = if heated {
@@ -667,7 +724,9 @@ fn load_duration(
         .map(|i| r.zone_heating_w.iter().map(|z| z[i]).sum::<f64>())
         .collect();
     loads.sort_by(|a, b| b.partial_cmp(a).unwrap_or(std::cmp::Ordering::Equal));
-    let marks = [1usize, 10, 50, 100, 250, 500, 1000, 2000, 3000, 4000, 5000, 6000, 7000, 8000, 8760];
+    let marks = [
+        1usize, 10, 50, 100, 250, 500, 1000, 2000, 3000, 4000, 5000, 6000, 7000, 8000, 8760,
+    ];
     let points = marks
         .iter()
         .filter(|&&h| h <= loads.len())
@@ -690,7 +749,9 @@ mod tests {
     use super::*;
 
     fn load(path: &str) -> (ModelFile, House) {
-        let p = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../..").join(path);
+        let p = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("../..")
+            .join(path);
         let m = dwell_model::read_model(&p).unwrap();
         let h = dwell_model::compile(&m, path).unwrap();
         (m, h)
@@ -715,24 +776,45 @@ mod tests {
         let ids = thermostat_zone_ids(&m, &h);
         let caps: Vec<f64> = ids
             .iter()
-            .map(|id| s.zones.iter().find(|z| &z.zone == id).unwrap().dynamic_w.unwrap())
+            .map(|id| {
+                s.zones
+                    .iter()
+                    .find(|z| &z.zone == id)
+                    .unwrap()
+                    .dynamic_w
+                    .unwrap()
+            })
             .collect();
         assert!(caps.iter().all(|&c| c > 100.0), "{caps:?}");
         let spell = design_spell(&m, None, &opts).unwrap();
-        assert!(test_capacities(&m, &h, &spell, &caps, &opts).unwrap().passes());
+        assert!(test_capacities(&m, &h, &spell, &caps, &opts)
+            .unwrap()
+            .passes());
         let less: Vec<f64> = caps.iter().map(|c| c * 0.98).collect();
-        assert!(!test_capacities(&m, &h, &spell, &less, &opts).unwrap().passes());
+        assert!(!test_capacities(&m, &h, &spell, &less, &opts)
+            .unwrap()
+            .passes());
         // and each zone alone at −2 % fails (no zone is oversized by the joint step)
         for z in 0..caps.len() {
             let mut one = caps.clone();
             one[z] *= 0.98;
-            assert!(!test_capacities(&m, &h, &spell, &one, &opts).unwrap().passes(), "zone {}", ids[z]);
+            assert!(
+                !test_capacities(&m, &h, &spell, &one, &opts)
+                    .unwrap()
+                    .passes(),
+                "zone {}",
+                ids[z]
+            );
         }
         // recommendation = ⌈max·margin/step⌉·step
         for z in &s.zones {
             if z.heated {
                 let need = z.steady_w.max(z.dynamic_w.unwrap_or(0.0)) * 1.1;
-                assert!(z.recommended_w >= need && z.recommended_w < need + 250.0, "{}", z.zone);
+                assert!(
+                    z.recommended_w >= need && z.recommended_w < need + 250.0,
+                    "{}",
+                    z.zone
+                );
                 assert_eq!(z.recommended_w % 250.0, 0.0);
             }
         }
@@ -757,7 +839,10 @@ mod tests {
             )
             .unwrap();
             let d = s.zones[0].dynamic_w.unwrap();
-            assert!(d <= last * (1.0 + 2.0 * BISECTION_RELATIVE), "recovery {r} h: {d} > {last}");
+            assert!(
+                d <= last * (1.0 + 2.0 * BISECTION_RELATIVE),
+                "recovery {r} h: {d} > {last}"
+            );
             last = d;
         }
     }

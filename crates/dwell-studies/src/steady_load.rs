@@ -106,11 +106,18 @@ pub fn design_inputs(house: &House, c: &DesignConditions) -> Vec<f64> {
 /// Steady state with the air of every zone in `held` fixed at the given temperature (°C) and
 /// everything else free, under inputs `u`. Returns `(x, Φ)` with `Φ[k]` the heat (W) the
 /// held node `k` must receive. Fails if the free part has no path to a boundary.
-pub fn held_steady_state(house: &House, held: &[(usize, f64)], u: &[f64]) -> Result<(Vec<f64>, Vec<f64>), StudyError> {
+pub fn held_steady_state(
+    house: &House,
+    held: &[(usize, f64)],
+    u: &[f64],
+) -> Result<(Vec<f64>, Vec<f64>), StudyError> {
     let sys = &house.network.system;
     let k = &sys.conductance;
     let n = k.nrows();
-    let fixed: Vec<usize> = held.iter().map(|(zi, _)| house.zones[*zi].air_state).collect();
+    let fixed: Vec<usize> = held
+        .iter()
+        .map(|(zi, _)| house.zones[*zi].air_state)
+        .collect();
     let free: Vec<usize> = (0..n).filter(|i| !fixed.contains(i)).collect();
     let uu = &sys.input * DVector::from_column_slice(u);
     let mut x = vec![0.0; n];
@@ -161,10 +168,19 @@ pub fn steady_load(house: &House, c: &DesignConditions) -> Result<SteadyLoad, St
         if let Some(zi) = house.zones.iter().position(|z| z.id == side) {
             return Some(air[zi]);
         }
-        house.network.inputs.iter().zip(&house.inputs).find_map(|(info, r)| match r {
-            InputRole::Boundary { temperature_c } if info.name == format!("boundary_{side}_c") => Some(*temperature_c),
-            _ => None,
-        })
+        house
+            .network
+            .inputs
+            .iter()
+            .zip(&house.inputs)
+            .find_map(|(info, r)| match r {
+                InputRole::Boundary { temperature_c }
+                    if info.name == format!("boundary_{side}_c") =>
+                {
+                    Some(*temperature_c)
+                }
+                _ => None,
+            })
     };
     let mut zones: Vec<ZoneSteadyLoad> = house
         .zones
@@ -174,8 +190,15 @@ pub fn steady_load(house: &House, c: &DesignConditions) -> Result<SteadyLoad, St
             zone: z.id.clone(),
             heated: z.heated,
             air_c: air[zi],
-            steady_w: held.iter().position(|(h, _)| *h == zi).map(|k| phi[k]).unwrap_or(0.0),
-            by_group_w: dwell_model::GROUPS.iter().map(|g| (g.to_string(), 0.0)).collect(),
+            steady_w: held
+                .iter()
+                .position(|(h, _)| *h == zi)
+                .map(|k| phi[k])
+                .unwrap_or(0.0),
+            by_group_w: dwell_model::GROUPS
+                .iter()
+                .map(|g| (g.to_string(), 0.0))
+                .collect(),
             fabric_w: 0.0,
             ventilation_w: 0.0,
             to_zones_w: BTreeMap::new(),
@@ -184,24 +207,41 @@ pub fn steady_load(house: &House, c: &DesignConditions) -> Result<SteadyLoad, St
         })
         .collect();
     for l in &house.losses {
-        let Some(t_other) = boundary_temp(&l.other_side) else { continue };
+        let Some(t_other) = boundary_temp(&l.other_side) else {
+            continue;
+        };
         let q = l.h_w_k * (air[l.zone] - t_other);
         let other_zone = house.zones.iter().position(|z| z.id == l.other_side);
-        *zones[l.zone].by_element_w.entry(l.id.clone()).or_insert(0.0) += q;
+        *zones[l.zone]
+            .by_element_w
+            .entry(l.id.clone())
+            .or_insert(0.0) += q;
         match other_zone {
             Some(oz) => {
-                *zones[l.zone].to_zones_w.entry(l.other_side.clone()).or_insert(0.0) += q;
+                *zones[l.zone]
+                    .to_zones_w
+                    .entry(l.other_side.clone())
+                    .or_insert(0.0) += q;
                 let me = house.zones[l.zone].id.clone();
                 *zones[oz].to_zones_w.entry(me).or_insert(0.0) -= q;
                 *zones[oz].by_element_w.entry(l.id.clone()).or_insert(0.0) -= q;
             }
-            None => *zones[l.zone].by_group_w.entry(l.group.to_string()).or_insert(0.0) += q,
+            None => {
+                *zones[l.zone]
+                    .by_group_w
+                    .entry(l.group.to_string())
+                    .or_insert(0.0) += q
+            }
         }
     }
     for z in &mut zones {
         z.ventilation_w = z.by_group_w["ventilation"];
         let listed: f64 = z.by_group_w.values().sum::<f64>() + z.to_zones_w.values().sum::<f64>();
-        z.other_w = if z.heated { z.steady_w - listed } else { -listed };
+        z.other_w = if z.heated {
+            z.steady_w - listed
+        } else {
+            -listed
+        };
         if z.other_w.abs() < 1e-9 * z.steady_w.abs().max(1.0) {
             z.other_w = 0.0;
         }
@@ -277,7 +317,11 @@ mod tests {
         assert!((z.ventilation_w - hve * 27.0).abs() < 1e-9 * want);
         assert_eq!(z.other_w, 0.0);
         for (g, v) in &s.house_by_group_w {
-            assert!((v - z.by_group_w[g]).abs() < 1e-9 * want, "{g}: {v} vs {}", z.by_group_w[g]);
+            assert!(
+                (v - z.by_group_w[g]).abs() < 1e-9 * want,
+                "{g}: {v} vs {}",
+                z.by_group_w[g]
+            );
         }
     }
 
@@ -308,8 +352,16 @@ mod tests {
             },
         )
         .unwrap();
-        assert!((s.zones[1].air_c - 5.0).abs() < 1e-9, "{}", s.zones[1].air_c);
-        assert!((s.zones[0].steady_w - 576.0).abs() < 1e-9 * 576.0, "{}", s.zones[0].steady_w);
+        assert!(
+            (s.zones[1].air_c - 5.0).abs() < 1e-9,
+            "{}",
+            s.zones[1].air_c
+        );
+        assert!(
+            (s.zones[0].steady_w - 576.0).abs() < 1e-9 * 576.0,
+            "{}",
+            s.zones[0].steady_w
+        );
         assert!((s.zones[0].to_zones_w["store"] - 96.0).abs() < 1e-9);
         assert!((s.zones[1].to_zones_w["heated"] + 96.0).abs() < 1e-9);
         assert_eq!(s.zones[1].steady_w, 0.0);
@@ -377,10 +429,17 @@ mod tests {
             obtained: format!("{got:.1} W vs {en12831} W ({:.2} %)", 100.0 * (got - en12831) / en12831),
             pass: ((got - en12831) / en12831).abs() < 0.01,
         });
-        assert!(((got - en12831) / en12831).abs() < 0.01, "{got} vs {en12831}");
+        assert!(
+            ((got - en12831) / en12831).abs() < 0.01,
+            "{got} vs {en12831}"
+        );
         // and the parts: fabric within 0.5 % (only the loft's air term differs), ventilation
         // exactly 1200/1224 of EN's
-        assert!(((s.zones[0].fabric_w - 427.247) / 427.247).abs() < 0.005, "{}", s.zones[0].fabric_w);
+        assert!(
+            ((s.zones[0].fabric_w - 427.247) / 427.247).abs() < 0.005,
+            "{}",
+            s.zones[0].fabric_w
+        );
         assert!((s.zones[0].ventilation_w - 255.0 * 1200.0 / 1224.0).abs() < 1e-6);
     }
 }

@@ -67,9 +67,17 @@ pub struct Runner<'a> {
 
 impl<'a> Runner<'a> {
     /// Prepares a run at step `step_s` (s), a divisor of one hour.
-    pub fn new(model: &'a ModelFile, house: &'a House, weather: &WeatherSeries, step_s: f64) -> Result<Runner<'a>, StudyError> {
+    pub fn new(
+        model: &'a ModelFile,
+        house: &'a House,
+        weather: &WeatherSeries,
+        step_s: f64,
+    ) -> Result<Runner<'a>, StudyError> {
         let step_min = step_s / 60.0;
-        if !ALLOWED_STEPS_MIN.iter().any(|&m| (m as f64 - step_min).abs() < 1e-9) {
+        if !ALLOWED_STEPS_MIN
+            .iter()
+            .any(|&m| (m as f64 - step_min).abs() < 1e-9)
+        {
             return Err(StudyError::Option(format!(
                 "a step of {step_min} minutes is not allowed; use one of {ALLOWED_STEPS_MIN:?}"
             )));
@@ -78,10 +86,19 @@ impl<'a> Runner<'a> {
         let net = &house.network;
         let (n, m) = (net.states.len(), net.inputs.len());
         let disc = Discretization::new(&net.system, step_s, Route::Modal)?;
-        let rows = Readout::nodes(&house.zones.iter().map(|z| z.air_state).collect::<Vec<_>>(), n, m);
+        let rows = Readout::nodes(
+            &house.zones.iter().map(|z| z.air_state).collect::<Vec<_>>(),
+            n,
+            m,
+        );
         let mut stepper = Stepper::new(&disc, &rows, &Readout::empty(n, m))?;
-        let crate::simulate::ThermostatChannels { channels, heaters: channel_heaters, zones: channel_zone } =
-            crate::simulate::thermostat_channels(model, house, &|hi| heater_setpoint(model, &model.heaters[hi]).is_some());
+        let crate::simulate::ThermostatChannels {
+            channels,
+            heaters: channel_heaters,
+            zones: channel_zone,
+        } = crate::simulate::thermostat_channels(model, house, &|hi| {
+            heater_setpoint(model, &model.heaters[hi]).is_some()
+        });
         let q = channels.len();
         if q > 0 {
             stepper = stepper.with_control(&channels)?;
@@ -89,7 +106,11 @@ impl<'a> Runner<'a> {
         Ok(Runner {
             model,
             house,
-            setpoint_sched: model.heaters.iter().map(|h| heater_setpoint(model, h)).collect(),
+            setpoint_sched: model
+                .heaters
+                .iter()
+                .map(|h| heater_setpoint(model, h))
+                .collect(),
             forcing,
             stepper,
             channel_zone,
@@ -116,7 +137,12 @@ impl<'a> Runner<'a> {
 
     /// One step `k` from stamp `start`; `adjust(k, setpoints, enabled)` may change the
     /// scheduled setpoints and switch channels off. Leaves heater inputs in `u_k`.
-    fn advance(&mut self, start: usize, k: usize, adjust: &mut impl FnMut(usize, &mut [f64], &mut [bool])) {
+    fn advance(
+        &mut self,
+        start: usize,
+        k: usize,
+        adjust: &mut impl FnMut(usize, &mut [f64], &mut [bool]),
+    ) {
         self.forcing.fill(start, k, &mut self.u_k);
         self.forcing.fill(start, k + 1, &mut self.u_next);
         if self.setpoint.is_empty() {
@@ -127,24 +153,42 @@ impl<'a> Runner<'a> {
             self.setpoint[c] = hs
                 .iter()
                 .map(|&hi| {
-                    self.forcing
-                        .at_step_end(self.setpoint_sched[hi].as_ref().expect("thermostat"), start, k)
+                    self.forcing.at_step_end(
+                        self.setpoint_sched[hi].as_ref().expect("thermostat"),
+                        start,
+                        k,
+                    )
                 })
                 .fold(f64::NEG_INFINITY, f64::max);
             self.enabled[c] = true;
         }
         adjust(k, &mut self.setpoint, &mut self.enabled);
-        self.stepper
-            .step_thermostat(&mut self.u_k, &self.u_next, &self.setpoint, &self.enabled, &mut self.fraction);
+        self.stepper.step_thermostat(
+            &mut self.u_k,
+            &self.u_next,
+            &self.setpoint,
+            &self.enabled,
+            &mut self.fraction,
+        );
     }
 
     /// Repeats the first `days` days from stamp `start` (default schedules) until no node
     /// moves by more than 0.01 K over a repeat (at most 30 repeats), starting from every node
     /// at the first zone's design temperature.
     /// `adjust` as in [`Runner::run`].
-    pub fn warm_up(&mut self, start: usize, days: usize, mut adjust: impl FnMut(usize, &mut [f64], &mut [bool])) {
+    pub fn warm_up(
+        &mut self,
+        start: usize,
+        days: usize,
+        mut adjust: impl FnMut(usize, &mut [f64], &mut [bool]),
+    ) {
         let n = self.house.network.states.len();
-        let first = self.house.zones.first().map(|z| z.design_indoor_c).unwrap_or(20.0);
+        let first = self
+            .house
+            .zones
+            .first()
+            .map(|z| z.design_indoor_c)
+            .unwrap_or(20.0);
         self.stepper.set_state(&vec![first; n]);
         let avail = self.forcing.hours() - 1 - start;
         let window = (days * 24).min(avail) * self.forcing.steps_per_hour;
@@ -155,7 +199,11 @@ impl<'a> Runner<'a> {
                 self.advance(start, k, &mut adjust);
             }
             self.stepper.state_into(&mut x);
-            let change = x.iter().zip(&prev).map(|(a, b)| (a - b).abs()).fold(0.0, f64::max);
+            let change = x
+                .iter()
+                .zip(&prev)
+                .map(|(a, b)| (a - b).abs())
+                .fold(0.0, f64::max);
             prev.copy_from_slice(&x);
             if change < 0.01 {
                 break;
@@ -183,7 +231,11 @@ impl<'a> Runner<'a> {
             heat_w: vec![Vec::with_capacity(cap); nz],
             setpoint_c: vec![Vec::with_capacity(cap); nz],
             outdoor_c: Vec::with_capacity(cap),
-            states: Vec::with_capacity(if keep_states { cap * self.house.network.states.len() } else { 0 }),
+            states: Vec::with_capacity(if keep_states {
+                cap * self.house.network.states.len()
+            } else {
+                0
+            }),
             n: self.house.network.states.len(),
         };
         let x0 = self.state();
@@ -191,21 +243,28 @@ impl<'a> Runner<'a> {
             .model
             .heaters
             .iter()
-            .map(|h| self.house.zones.iter().position(|z| z.id == h.zone).expect("validated"))
+            .map(|h| {
+                self.house
+                    .zones
+                    .iter()
+                    .position(|z| z.id == h.zone)
+                    .expect("validated")
+            })
             .collect();
         let mut temps = vec![0.0; nz];
         let mut x = x0.clone();
-        let record = |t: &mut Trace, f: &Forcing, k: usize, temps: &[f64], heat: &[f64], sp: &[f64]| {
-            let at = f.instant(start, k);
-            t.times.push(at);
-            t.local.push(f.local(at));
-            t.outdoor_c.push(f.outdoor_at(start, k));
-            for z in 0..temps.len() {
-                t.zone_c[z].push(temps[z]);
-                t.heat_w[z].push(heat[z]);
-                t.setpoint_c[z].push(sp[z]);
-            }
-        };
+        let record =
+            |t: &mut Trace, f: &Forcing, k: usize, temps: &[f64], heat: &[f64], sp: &[f64]| {
+                let at = f.instant(start, k);
+                t.times.push(at);
+                t.local.push(f.local(at));
+                t.outdoor_c.push(f.outdoor_at(start, k));
+                for z in 0..temps.len() {
+                    t.zone_c[z].push(temps[z]);
+                    t.heat_w[z].push(heat[z]);
+                    t.setpoint_c[z].push(sp[z]);
+                }
+            };
         let temps0: Vec<f64> = self.house.zones.iter().map(|z| x0[z.air_state]).collect();
         let mut heat = vec![0.0; nz];
         let mut sp = vec![f64::NAN; nz];
@@ -220,7 +279,11 @@ impl<'a> Runner<'a> {
                 heat[zi] += self.u_k[self.house.heater_inputs[hi]];
             }
             for (c, &zi) in self.channel_zone.iter().enumerate() {
-                sp[zi] = if self.enabled[c] { self.setpoint[c] } else { f64::NAN };
+                sp[zi] = if self.enabled[c] {
+                    self.setpoint[c]
+                } else {
+                    f64::NAN
+                };
             }
             temps.copy_from_slice(self.stepper.instant());
             record(&mut t, &self.forcing, k + 1, &temps, &heat, &sp);
@@ -234,7 +297,11 @@ impl<'a> Runner<'a> {
 }
 
 /// The stamps `[start, end]` of the weather within local days `from` … `to` (inclusive).
-pub fn period_stamps(f: &Forcing, from: Option<chrono::NaiveDate>, to: Option<chrono::NaiveDate>) -> Result<(usize, usize), StudyError> {
+pub fn period_stamps(
+    f: &Forcing,
+    from: Option<chrono::NaiveDate>,
+    to: Option<chrono::NaiveDate>,
+) -> Result<(usize, usize), StudyError> {
     period_stamps_in(&f.times, f.local_offset(), from, to)
 }
 
@@ -251,16 +318,25 @@ pub fn period_stamps_in(
     let mut end = n - 1;
     if let Some(d) = from {
         let t0 = d.and_hms_opt(0, 0, 0).expect("midnight");
-        start = (0..n)
-            .find(|&i| local(i) >= t0)
-            .ok_or_else(|| StudyError::Option(format!("--from {d} is after the end of the weather ({})", times[n - 1])))?;
+        start = (0..n).find(|&i| local(i) >= t0).ok_or_else(|| {
+            StudyError::Option(format!(
+                "--from {d} is after the end of the weather ({})",
+                times[n - 1]
+            ))
+        })?;
     }
     if let Some(d) = to {
-        let t1 = d.succ_opt().unwrap_or(d).and_hms_opt(0, 0, 0).expect("midnight");
-        end = (0..n)
-            .rev()
-            .find(|&i| local(i) <= t1)
-            .ok_or_else(|| StudyError::Option(format!("--to {d} is before the start of the weather ({})", times[0])))?;
+        let t1 = d
+            .succ_opt()
+            .unwrap_or(d)
+            .and_hms_opt(0, 0, 0)
+            .expect("midnight");
+        end = (0..n).rev().find(|&i| local(i) <= t1).ok_or_else(|| {
+            StudyError::Option(format!(
+                "--to {d} is before the start of the weather ({})",
+                times[0]
+            ))
+        })?;
     }
     if end <= start {
         return Err(StudyError::Option(format!(
@@ -273,7 +349,13 @@ pub fn period_stamps_in(
 
 /// First time (h after `times[from]`) the series `v` crosses below `threshold` at or after
 /// index `from`, by linear interpolation between instants; None if it never does.
-pub fn hours_until_below(local: &[NaiveDateTime], v: &[f64], from: usize, until: usize, threshold: f64) -> Option<f64> {
+pub fn hours_until_below(
+    local: &[NaiveDateTime],
+    v: &[f64],
+    from: usize,
+    until: usize,
+    threshold: f64,
+) -> Option<f64> {
     if v[from] < threshold {
         return Some(0.0);
     }

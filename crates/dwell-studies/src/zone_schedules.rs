@@ -16,7 +16,10 @@ pub struct ZoneSchedules {
 
 fn schedule(m: &ModelFile, id: &Option<String>) -> Option<WeeklySchedule> {
     let id = id.as_ref()?;
-    m.schedules.iter().find(|s| &s.id == id).and_then(|s| WeeklySchedule::new(s).ok())
+    m.schedules
+        .iter()
+        .find(|s| &s.id == id)
+        .and_then(|s| WeeklySchedule::new(s).ok())
 }
 
 /// The setpoint schedule of a heater (°C), if it has a thermostat.
@@ -53,7 +56,11 @@ impl ZoneSchedules {
                         .collect()
                 })
                 .collect(),
-            occupancy: model.zones.iter().map(|z| schedule(model, &z.occupancy)).collect(),
+            occupancy: model
+                .zones
+                .iter()
+                .map(|z| schedule(model, &z.occupancy))
+                .collect(),
             offset: Duration::seconds((model.site.utc_offset_h * 3600.0).round() as i64),
         }
     }
@@ -71,7 +78,10 @@ impl ZoneSchedules {
     /// Setpoint of zone `zi` in force just before `local` (°C): the highest of its heaters'.
     pub fn setpoint(&self, zi: usize, local: NaiveDateTime) -> Option<f64> {
         let t = local - Duration::seconds(1);
-        self.setpoints[zi].iter().map(|s| s.value_at(t)).reduce(f64::max)
+        self.setpoints[zi]
+            .iter()
+            .map(|s| s.value_at(t))
+            .reduce(f64::max)
     }
 
     /// Whether zone `zi` is occupied at `local`.
@@ -85,8 +95,13 @@ impl ZoneSchedules {
     /// True if the setpoint of zone `zi` was at least 0.1 K lower at some moment in the
     /// `window_h` hours before `local` (sampled every 5 minutes): a recovery may be under way.
     pub fn recovering(&self, zi: usize, local: NaiveDateTime, window_h: f64) -> bool {
-        let Some(now) = self.setpoint(zi, local) else { return false };
+        let Some(now) = self.setpoint(zi, local) else {
+            return false;
+        };
         let n = (window_h * 12.0).round() as i64;
-        (1..=n).any(|k| self.setpoint(zi, local - Duration::minutes(5 * k)).is_some_and(|v| v < now - 0.1))
+        (1..=n).any(|k| {
+            self.setpoint(zi, local - Duration::minutes(5 * k))
+                .is_some_and(|v| v < now - 0.1)
+        })
     }
 }

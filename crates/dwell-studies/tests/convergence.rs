@@ -11,7 +11,8 @@ use dwell_testkit::{record, Check};
 fn default_mesh_is_within_one_percent_of_a_refined_mesh() {
     let w = dwell_weather::default_weather();
     for stem in ["fernhollow-cabin", "brickworth-house", "sunbank-bungalow"] {
-        let path = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join(format!("../../zones-examples/{stem}.json"));
+        let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+            .join(format!("../../zones-examples/{stem}.json"));
         let m = dwell_model::read_model(&path).unwrap();
         let mut fine = m.clone();
         fine.mesh.depth_fraction = 0.25;
@@ -19,8 +20,14 @@ fn default_mesh_is_within_one_percent_of_a_refined_mesh() {
         let hd = dwell_model::compile(&m, stem).unwrap();
         let hf = dwell_model::compile(&fine, stem).unwrap();
         assert!(hf.network.states.len() > hd.network.states.len() + 10);
-        let ed = simulate(&m, &hd, &w, &SimOptions::default()).unwrap().summary.total_heating_kwh;
-        let ef = simulate(&fine, &hf, &w, &SimOptions::default()).unwrap().summary.total_heating_kwh;
+        let ed = simulate(&m, &hd, &w, &SimOptions::default())
+            .unwrap()
+            .summary
+            .total_heating_kwh;
+        let ef = simulate(&fine, &hf, &w, &SimOptions::default())
+            .unwrap()
+            .summary
+            .total_heating_kwh;
         let err = (ed - ef).abs() / ef;
         record(
             "convergence",

@@ -10,8 +10,8 @@
 use std::path::PathBuf;
 
 use dwell_solver::{Discretization, InputKind, RcSystem, Readout, Route, Stepper};
-use nalgebra::DMatrix;
 use dwell_testkit::{record, Check};
+use nalgebra::DMatrix;
 use serde_json::Value;
 
 const HOURS: usize = 8760;
@@ -43,7 +43,8 @@ fn inputs(hold: &[InputKind]) -> Vec<Vec<f64>> {
                 .map(|(j, k)| match k {
                     InputKind::Temperature => {
                         let s = tf - 3.0 * j as f64;
-                        10.0 + 8.0 * (2.0 * PI * s / 8760.0 - 2.0).sin() + 5.0 * (2.0 * PI * s / 24.0 - 1.0).sin()
+                        10.0 + 8.0 * (2.0 * PI * s / 8760.0 - 2.0).sin()
+                            + 5.0 * (2.0 * PI * s / 24.0 - 1.0).sin()
                     }
                     InputKind::HeatFlow => 300.0 * (1.0 + (2.0 * PI * d / 7.0 + j as f64).sin()),
                 })
@@ -53,19 +54,31 @@ fn inputs(hold: &[InputKind]) -> Vec<Vec<f64>> {
 }
 
 fn check_house(stem: &str) {
-    let path = root().join(format!("crates/dwell-solver/tests/reference/{stem}_ref.json"));
+    let path = root().join(format!(
+        "crates/dwell-solver/tests/reference/{stem}_ref.json"
+    ));
     let text = std::fs::read_to_string(&path).unwrap_or_else(|e| {
-        panic!("{}: {e}; run `.ci/run` or `scripts/ref_solver.py --house` (see DEVELOPERS.md)", path.display())
+        panic!(
+            "{}: {e}; run `.ci/run` or `scripts/ref_solver.py --house` (see DEVELOPERS.md)",
+            path.display()
+        )
     });
     let fx: Value = serde_json::from_str(&text).unwrap();
-    let model = dwell_model::read_model(&root().join(format!("zones-examples/{stem}.json"))).unwrap();
+    let model =
+        dwell_model::read_model(&root().join(format!("zones-examples/{stem}.json"))).unwrap();
     let house = dwell_model::compile(&model, stem).unwrap();
     let sys: &RcSystem = &house.network.system;
     // the fixture must describe this very house
     let a_fx = matrix(&fx["a"]);
     let b_fx = matrix(&fx["b"]);
-    assert!(rel(&sys.a(), &a_fx) < 1e-14, "{stem}: A changed since the fixture was made; rerun the script");
-    assert!(rel(&sys.b(), &b_fx) < 1e-14, "{stem}: B changed since the fixture was made; rerun the script");
+    assert!(
+        rel(&sys.a(), &a_fx) < 1e-14,
+        "{stem}: A changed since the fixture was made; rerun the script"
+    );
+    assert!(
+        rel(&sys.b(), &b_fx) < 1e-14,
+        "{stem}: B changed since the fixture was made; rerun the script"
+    );
     let expm = matrix(&fx["expm_ha"]);
     let zoh_b = matrix(&fx["zoh_bd"]);
     let n = sys.states();
@@ -78,8 +91,16 @@ fn check_house(stem: &str) {
     for route in [Route::Modal, Route::Block] {
         let d = Discretization::new(sys, 3600.0, route).unwrap();
         // scipy.linalg.expm and cont2discrete('zoh'): 1e-10 relative (issue 4)
-        assert!(rel(&d.phi(), &expm) < 1e-10, "{stem} {route:?}: Φ vs expm {:e}", rel(&d.phi(), &expm));
-        assert!(rel(&d.gamma0(), &zoh_b) < 1e-10, "{stem} {route:?}: Γ₀ vs zoh {:e}", rel(&d.gamma0(), &zoh_b));
+        assert!(
+            rel(&d.phi(), &expm) < 1e-10,
+            "{stem} {route:?}: Φ vs expm {:e}",
+            rel(&d.phi(), &expm)
+        );
+        assert!(
+            rel(&d.gamma0(), &zoh_b) < 1e-10,
+            "{stem} {route:?}: Γ₀ vs zoh {:e}",
+            rel(&d.gamma0(), &zoh_b)
+        );
         let all: Vec<usize> = (0..n).collect();
         let mut st = Stepper::new(&d, &Readout::nodes(&all, n, m), &Readout::empty(n, m)).unwrap();
         st.set_state(&x0);
@@ -101,29 +122,46 @@ fn check_house(stem: &str) {
             }
         }
         // SciPy's exact FOH+ZOH trajectory: 1e-10 relative; Radau at rtol 1e-10: 1e-6 K.
-        let generator = fx["generator"].as_str().unwrap_or("scripts/ref_solver.py").to_string();
+        let generator = fx["generator"]
+            .as_str()
+            .unwrap_or("scripts/ref_solver.py")
+            .to_string();
         let phi_err = rel(&d.phi(), &expm);
         let g_err = rel(&d.gamma0(), &zoh_b);
-        record("scipy", Check {
-            area: "Exact discretisation against SciPy",
-            what: &format!("{stem}, {route:?} route: Φ, Γ₀ and a year of FOH/ZOH steps"),
-            source: &format!("scipy.linalg.expm, scipy.signal.cont2discrete zoh/foh ({generator})"),
-            tolerance: "1e-10 relative",
-            obtained: format!("Φ {phi_err:.1e}, Γ₀ {g_err:.1e}, trajectory {worst_disc:.1e}"),
-            pass: phi_err < 1e-10 && g_err < 1e-10 && worst_disc < 1e-10,
-        });
-        if ivp_fx.is_some() {
-            record("scipy", Check {
+        record(
+            "scipy",
+            Check {
                 area: "Exact discretisation against SciPy",
-                what: &format!("{stem}, {route:?} route: a free-floating year vs Radau"),
-                source: &format!("scipy.integrate.solve_ivp Radau, rtol 1e-10 ({generator})"),
-                tolerance: "1e-6 K",
-                obtained: format!("{worst_ivp:.1e} K"),
-                pass: worst_ivp < 1e-6,
-            });
+                what: &format!("{stem}, {route:?} route: Φ, Γ₀ and a year of FOH/ZOH steps"),
+                source: &format!(
+                    "scipy.linalg.expm, scipy.signal.cont2discrete zoh/foh ({generator})"
+                ),
+                tolerance: "1e-10 relative",
+                obtained: format!("Φ {phi_err:.1e}, Γ₀ {g_err:.1e}, trajectory {worst_disc:.1e}"),
+                pass: phi_err < 1e-10 && g_err < 1e-10 && worst_disc < 1e-10,
+            },
+        );
+        if ivp_fx.is_some() {
+            record(
+                "scipy",
+                Check {
+                    area: "Exact discretisation against SciPy",
+                    what: &format!("{stem}, {route:?} route: a free-floating year vs Radau"),
+                    source: &format!("scipy.integrate.solve_ivp Radau, rtol 1e-10 ({generator})"),
+                    tolerance: "1e-6 K",
+                    obtained: format!("{worst_ivp:.1e} K"),
+                    pass: worst_ivp < 1e-6,
+                },
+            );
         }
-        assert!(worst_disc < 1e-10, "{stem} {route:?}: vs scipy discrete {worst_disc:e}");
-        assert!(worst_ivp < 1e-6, "{stem} {route:?}: vs solve_ivp {worst_ivp:e} K");
+        assert!(
+            worst_disc < 1e-10,
+            "{stem} {route:?}: vs scipy discrete {worst_disc:e}"
+        );
+        assert!(
+            worst_ivp < 1e-6,
+            "{stem} {route:?}: vs solve_ivp {worst_ivp:e} K"
+        );
     }
 }
 

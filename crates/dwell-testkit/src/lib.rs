@@ -26,13 +26,19 @@ pub struct Check<'a> {
 
 /// Records a check (see the crate docs). Call it before asserting, so failures are reported.
 pub fn record(file: &str, c: Check<'_>) {
-    let Ok(dir) = std::env::var("DWELL_VALIDATION_DIR") else { return };
+    let Ok(dir) = std::env::var("DWELL_VALIDATION_DIR") else {
+        return;
+    };
     let _ = std::fs::create_dir_all(&dir);
     let line = serde_json::json!({
         "area": c.area, "what": c.what, "source": c.source, "tolerance": c.tolerance,
         "obtained": c.obtained, "pass": c.pass,
     });
-    if let Ok(mut f) = std::fs::OpenOptions::new().create(true).append(true).open(std::path::Path::new(&dir).join(format!("{file}.jsonl"))) {
+    if let Ok(mut f) = std::fs::OpenOptions::new()
+        .create(true)
+        .append(true)
+        .open(std::path::Path::new(&dir).join(format!("{file}.jsonl")))
+    {
         let _ = writeln!(f, "{line}");
     }
 }

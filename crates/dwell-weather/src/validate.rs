@@ -168,7 +168,8 @@ pub(crate) fn build_series(
             if missing > max_fill {
                 let hint = match opts.fill_gaps_max_h {
                     _ if missing > 24 * 366 => {
-                        "; the gap is longer than a year: is the date on this line mistyped?".to_string()
+                        "; the gap is longer than a year: is the date on this line mistyped?"
+                            .to_string()
                     }
                     None => {
                         format!("; add the rows, or fill gaps linearly with --fill-gaps {missing}")

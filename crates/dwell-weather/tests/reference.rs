@@ -87,14 +87,17 @@ fn transposition_matches_pvlib_isotropic_hay_davies_and_perez() {
         }
     }
     eprintln!("transposition vs pvlib: max |Δ| {max:.2e} W/m²");
-    dwell_testkit::record("weather", dwell_testkit::Check {
-        area: "Sun and irradiance",
-        what: "plane irradiance, 8 planes, isotropic, Hay–Davies and Perez skies",
-        source: "pvlib 0.16.1 irradiance.get_total_irradiance",
-        tolerance: "1e-6 W/m² (issue: 1 W/m² or 0.5 %)",
-        obtained: format!("{max:.1e} W/m²"),
-        pass: max < 1e-6,
-    });
+    dwell_testkit::record(
+        "weather",
+        dwell_testkit::Check {
+            area: "Sun and irradiance",
+            what: "plane irradiance, 8 planes, isotropic, Hay–Davies and Perez skies",
+            source: "pvlib 0.16.1 irradiance.get_total_irradiance",
+            tolerance: "1e-6 W/m² (issue: 1 W/m² or 0.5 %)",
+            obtained: format!("{max:.1e} W/m²"),
+            pass: max < 1e-6,
+        },
+    );
     assert!(max < 1e-6, "plane irradiance differs by {max} W/m²");
 }
 

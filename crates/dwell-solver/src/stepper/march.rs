@@ -23,6 +23,8 @@
 //! loop itself allocates nothing.
 
 use super::Stepper;
+use crate::control::Control;
+use crate::lcp;
 use crate::packed::Kernel;
 #[cfg(target_arch = "x86_64")]
 use crate::packed::{Avx2, Avx512};
@@ -103,6 +105,18 @@ impl Stepper {
         instant_out: &mut [f64],
         mean_out: &mut [f64],
     ) {
+        self.march(inputs, steps, instant_out, mean_out, None);
+    }
+
+    /// The block march of the modal route, free or under thermostats.
+    fn march(
+        &mut self,
+        inputs: &[f64],
+        steps: usize,
+        instant_out: &mut [f64],
+        mean_out: &mut [f64],
+        mut control: Option<(&mut Control, &mut Thermostat)>,
+    ) {
         let (n, m) = (self.n, self.m);
         let p = self.work.out().len();
         let npad = n.div_ceil(PANEL) * PANEL;
@@ -117,6 +131,11 @@ impl Stepper {
         // One panel more than the block's readouts, so the last column can be read 8 values
         // past its means (`put`).
         let mut yb = lines(shape.ld_y * blk + PANEL);
+        // Thermostats: the free input response and the controlled rows' input part.
+        let q = control.as_ref().map_or(0, |(c, _)| c.fraction.len());
+        let ld_c = q.div_ceil(PANEL) * PANEL;
+        let mut vb = lines(if q > 0 { npad * blk } else { 0 });
+        let mut cb = lines(ld_c * blk);
         // ξ_0 relative to u_0's temperatures.
         self.align(&inputs[..m]);
         flat_mut(&mut zb)[..n].copy_from_slice(&self.work.z()[..n]);
@@ -132,19 +151,26 @@ impl Stepper {
                 mean_out: &mut *mean_out,
                 instant_out: &mut *instant_out,
             };
-            let (z, y) = (flat_mut(&mut zb), flat_mut(&mut yb));
+            let buf = Buffers {
+                z: flat_mut(&mut zb),
+                y: flat_mut(&mut yb),
+                v: flat_mut(&mut vb),
+                c: flat_mut(&mut cb),
+                ld_c,
+            };
+            let ctl = control.as_mut().map(|(c, t)| (&mut **c, &mut **t));
             match self.kernel {
                 // SAFETY: `Plain` is baseline code.
-                Kernel::Portable => unsafe { self.block::<Plain, 2>(shape, io, z, y) },
+                Kernel::Portable => unsafe { self.block::<Plain, 2>(shape, io, buf, ctl) },
                 // SAFETY (both arms): these forms are only constructed after
                 // `is_x86_feature_detected!` reported their features.
                 #[cfg(target_arch = "x86_64")]
-                Kernel::Avx2Fma => unsafe { block_avx2(self, shape, io, z, y) },
+                Kernel::Avx2Fma => unsafe { block_avx2(self, shape, io, buf, ctl) },
                 #[cfg(target_arch = "x86_64")]
-                Kernel::Avx512 => unsafe { block_avx512(self, shape, io, z, y) },
+                Kernel::Avx512 => unsafe { block_avx512(self, shape, io, buf, ctl) },
             }
             // The block's end state starts the next block.
-            z.copy_within(b * npad..(b + 1) * npad, 0);
+            flat_mut(&mut zb).copy_within(b * npad..(b + 1) * npad, 0);
             k0 += b;
         }
         // Leave the stepper as `step` would: ξ_K, the last step's inputs and end
@@ -159,11 +185,21 @@ impl Stepper {
             *slot = end[t];
         }
         out.copy_from_slice(y_last);
+        if let Some((ctl, th)) = control {
+            // As `step_thermostat` leaves them: the last step's heaters in `z`'s inputs.
+            let f = &th.fractions[(steps - 1) * q..steps * q];
+            for (ch, &fc) in ctl.channels.iter().zip(f) {
+                for &(j, w) in &ch.weights {
+                    z[n + j] += fc * w;
+                }
+            }
+        }
         self.shifted = true;
     }
 
-    /// One block of steps in one kernel form: `z` holds the block's states (column 0
-    /// filled), `y` is scratch; the readouts are written out.
+    /// One block of steps in one kernel form: `buf.z` holds the block's states (column 0
+    /// filled), the other buffers are scratch; the readouts (and, under thermostats, the
+    /// fractions) are written out.
     ///
     /// # Safety
     /// The processor must support `V`'s instructions.
@@ -172,8 +208,8 @@ impl Stepper {
         &self,
         s: Shape,
         io: BlockIo,
-        z: &mut [f64],
-        y: &mut [f64],
+        buf: Buffers,
+        control: Option<(&mut Control, &mut Thermostat)>,
     ) {
         let (m, pm) = (self.m, self.p_mean);
         let BlockIo {
@@ -183,7 +219,14 @@ impl Stepper {
             mean_out,
             instant_out,
         } = io;
-        let decay = self.decay.as_deref().expect("modal route");
+        let Buffers {
+            z,
+            y,
+            v,
+            c: cb,
+            ld_c,
+        } = buf;
+        let decay = &self.decay.as_deref().expect("modal route")[..s.npad];
         // u_k for the block's steps, read in place from the caller's table.
         let u = &inputs[k0 * m..];
         let u_k = Segment {
@@ -193,10 +236,25 @@ impl Stepper {
             rows: None,
             shift: 0,
         };
+        // u_{k+1,T}: the temperature entries of the next step's inputs.
+        let u_t = Segment {
+            data: u,
+            ld: m,
+            cols: self.temp_inputs.len(),
+            rows: Some(&self.temp_inputs),
+            shift: 1,
+        };
         // SAFETY (all): forwarded from this function's contract.
         unsafe {
-            self.advance
-                .gemm_scan_in::<V, NC>(&[u_k], b, &decay[..s.npad], z);
+            let mut control = control;
+            match control.as_mut() {
+                None => self.advance.gemm_scan_in::<V, NC>(&[u_k], b, decay, z),
+                Some((ctl, th)) => {
+                    self.advance.gemm_in::<V, NC>(&[u_k], b, v, s.npad);
+                    ctl.row_inputs.gemm_in::<V, NC>(&[u_k, u_t], b, cb, ld_c);
+                    thermostat_steps::<V>(s.npad, decay, z, v, cb, ld_c, k0, b, ctl, th);
+                }
+            }
             let segs = [
                 Segment {
                     data: z,
@@ -206,16 +264,24 @@ impl Stepper {
                     shift: 0,
                 },
                 u_k,
-                // u_{k+1,T}: the temperature entries of the next step's inputs.
-                Segment {
-                    data: u,
-                    ld: m,
-                    cols: self.temp_inputs.len(),
-                    rows: Some(&self.temp_inputs),
-                    shift: 1,
-                },
+                u_t,
             ];
             self.outputs.gemm_in::<V, NC>(&segs, b, y, s.ld_y);
+            if let Some((ctl, th)) = control {
+                // The heaters' share of the readouts.
+                let q = ctl.fraction.len();
+                for j in 0..b {
+                    let f = &th.fractions[(k0 + j) * q..(k0 + j + 1) * q];
+                    let col = &mut y[j * s.ld_y..j * s.ld_y + s.p];
+                    for (c, &fc) in f.iter().enumerate() {
+                        if fc != 0.0 {
+                            for (yr, g) in col.iter_mut().zip(ctl.output_gain.row(c)) {
+                                *yr += fc * g;
+                            }
+                        }
+                    }
+                }
+            }
             let pi = s.p - pm;
             for j in 0..b {
                 let k = k0 + j;
@@ -227,18 +293,235 @@ impl Stepper {
     }
 }
 
+/// The block's buffers: states `z` (`npad` a column, `b + 1` columns), readouts `y`, and
+/// under thermostats the free input response `v` and the controlled rows' input part `c`
+/// (leading dimension `ld_c`).
+struct Buffers<'a> {
+    z: &'a mut [f64],
+    y: &'a mut [f64],
+    v: &'a mut [f64],
+    c: &'a mut [f64],
+    ld_c: usize,
+}
+
+/// The sequential part of a thermostat block: for each step `j`, the controlled outputs
+/// with the heaters off `y⁰_c = r_c · ξ_j + cb[c, j]`, the box problem for the fractions,
+/// and `ξ_{j+1} = d ∘ ξ_j + v[:, j] + Σ_c f_c g_c`.
+///
+/// # Safety
+/// The processor must support `V`'s instructions.
+#[allow(clippy::too_many_arguments)]
+#[inline(always)]
+unsafe fn thermostat_steps<V: Lane8>(
+    npad: usize,
+    decay: &[f64],
+    z: &mut [f64],
+    v: &[f64],
+    cb: &[f64],
+    ld_c: usize,
+    k0: usize,
+    b: usize,
+    ctl: &mut Control,
+    th: &mut Thermostat,
+) {
+    let q = ctl.fraction.len();
+    let np = npad / PANEL;
+    assert!(
+        z.len() >= (b + 1) * npad
+            && v.len() >= b * npad
+            && cb.len() >= b * ld_c
+            && ctl.row_state.len() >= q * np
+            && ctl.gain_lines.len() >= q * np
+            && decay.len() >= npad,
+        "thermostat block shapes"
+    );
+    let line = |p: *const f64| p.cast::<[f64; PANEL]>();
+    for j in 0..b {
+        let k = k0 + j;
+        // SAFETY: the panels read lie in the slices (checked above); `V`'s instructions are
+        // supported (this function's contract).
+        unsafe {
+            let xi = z.as_ptr().add(j * npad);
+            for c in 0..q {
+                let r = ctl.row_state.as_ptr().add(c * np).cast::<f64>();
+                let mut acc = V::zero();
+                for p in 0..np {
+                    let off = p * PANEL;
+                    acc = V::fmadd(
+                        V::load(&*line(r.add(off))),
+                        V::load(&*line(xi.add(off))),
+                        acc,
+                    );
+                }
+                let free = acc.sum() + cb[j * ld_c + c];
+                ctl.rhs[c] = if th.enabled[c] {
+                    th.setpoints[k * q + c] - free
+                } else {
+                    0.0
+                };
+            }
+            ctl.sweeps = lcp::solve(
+                &ctl.influence,
+                &ctl.rhs,
+                th.enabled,
+                &mut ctl.fraction,
+                &mut ctl.scratch,
+            );
+            th.fractions[k * q..(k + 1) * q].copy_from_slice(&ctl.fraction);
+            // The heaters that run, as (fraction, gain row): a local list, so the stores
+            // below cannot be taken to change it.
+            let mut on = [(0.0, 0usize); 8];
+            let mut count = 0;
+            for (c, &fc) in ctl.fraction.iter().enumerate() {
+                if fc != 0.0 {
+                    if count == on.len() {
+                        break;
+                    }
+                    on[count] = (fc, c);
+                    count += 1;
+                }
+            }
+            let many = ctl.fraction.iter().filter(|&&f| f != 0.0).count() > on.len();
+            let vj = v.as_ptr().add(j * npad);
+            let next = z.as_mut_ptr().add((j + 1) * npad);
+            let gains = ctl.gain_lines.as_ptr();
+            for p in 0..np {
+                let off = p * PANEL;
+                let mut x = V::fmadd(
+                    V::load(&*line(decay.as_ptr().add(off))),
+                    V::load(&*line(xi.add(off))),
+                    V::load(&*line(vj.add(off))),
+                );
+                if many {
+                    for (c, &fc) in ctl.fraction.iter().enumerate() {
+                        let g = gains.add(c * np + p).cast::<f64>();
+                        x = V::fmadd(V::splat(fc), V::load(&*line(g)), x);
+                    }
+                } else {
+                    for &(fc, c) in &on[..count] {
+                        let g = gains.add(c * np + p).cast::<f64>();
+                        x = V::fmadd(V::splat(fc), V::load(&*line(g)), x);
+                    }
+                }
+                V::store(x, &mut *next.add(off).cast::<[f64; PANEL]>());
+            }
+        }
+    }
+}
+
+/// The per-run arguments of a thermostat block run.
+struct Thermostat<'a> {
+    setpoints: &'a [f64],
+    enabled: &'a [bool],
+    fractions: &'a mut [f64],
+}
+
+impl Stepper {
+    /// Steps through known inputs under the capacity-limited thermostats of
+    /// [`Stepper::with_control`]: the same as `K` calls of [`Stepper::step_thermostat`]
+    /// (up to the order of rounding), with `inputs` holding `u_0 … u_K` row by row
+    /// (`(K + 1) · m`; the heater entries carry heat other than the thermostats', normally
+    /// 0), `setpoints` the channels' setpoints for each step (`K · q`, °C, row by row),
+    /// `enabled` which channels may heat (`q`, for the whole run), and the chosen fractions
+    /// written to `fractions` (`K · q`); the readouts go to `instant_out` (`K · p_i`) and
+    /// `mean_out` (`K · p_m`) and include the heaters.
+    ///
+    /// On the modal route a block of steps runs as: the free input response `H u` and the
+    /// controlled rows' input part as two matrix products; then step by step only what the
+    /// thermostats need — the controlled outputs with the heaters off (`q` dot products of
+    /// length `n`), the box problem (`lcp.rs`, warm-started from the previous step) and
+    /// `ξ_{k+1} = F ξ_k + H u_k + Σ_c f_c H e_c`; then all readouts of the block as one more
+    /// product, plus the heaters' `Σ_c f_c (O e_c)`. The block route steps one by one.
+    ///
+    /// # Panics
+    /// If [`Stepper::with_control`] was not called, or a length does not match.
+    pub fn run_thermostat(
+        &mut self,
+        inputs: &[f64],
+        setpoints: &[f64],
+        enabled: &[bool],
+        fractions: &mut [f64],
+        instant_out: &mut [f64],
+        mean_out: &mut [f64],
+    ) {
+        let q = self
+            .control
+            .as_ref()
+            .expect("run_thermostat needs with_control")
+            .fraction
+            .len();
+        let (m, pm) = (self.m, self.p_mean);
+        let pi = self.work.out().len() - pm;
+        let steps = fractions.len().checked_div(q).unwrap_or(0);
+        assert!(
+            enabled.len() == q
+                && fractions.len() == steps * q
+                && setpoints.len() == steps * q
+                && inputs.len() == (steps + 1) * m
+                && instant_out.len() == steps * pi
+                && mean_out.len() == steps * pm,
+            "run_thermostat lengths"
+        );
+        if steps == 0 {
+            return;
+        }
+        if self.decay.is_none() {
+            let mut u_k = vec![0.0; m];
+            for k in 0..steps {
+                u_k.copy_from_slice(&inputs[k * m..(k + 1) * m]);
+                self.step_thermostat(
+                    &mut u_k,
+                    &inputs[(k + 1) * m..(k + 2) * m],
+                    &setpoints[k * q..(k + 1) * q],
+                    enabled,
+                    &mut fractions[k * q..(k + 1) * q],
+                );
+                instant_out[k * pi..(k + 1) * pi].copy_from_slice(self.instant());
+                mean_out[k * pm..(k + 1) * pm].copy_from_slice(self.mean());
+            }
+            return;
+        }
+        let mut ctl = self.control.take().expect("checked above");
+        let mut th = Thermostat {
+            setpoints,
+            enabled,
+            fractions,
+        };
+        self.march(
+            inputs,
+            steps,
+            instant_out,
+            mean_out,
+            Some((&mut ctl, &mut th)),
+        );
+        self.control = Some(ctl);
+    }
+}
+
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx2,fma")]
-unsafe fn block_avx2(st: &Stepper, s: Shape, io: BlockIo, z: &mut [f64], y: &mut [f64]) {
+unsafe fn block_avx2(
+    st: &Stepper,
+    s: Shape,
+    io: BlockIo,
+    buf: Buffers,
+    ctl: Option<(&mut Control, &mut Thermostat)>,
+) {
     // SAFETY: this function's features are those of `Avx2`.
-    unsafe { st.block::<Avx2, 4>(s, io, z, y) }
+    unsafe { st.block::<Avx2, 4>(s, io, buf, ctl) }
 }
 
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx512f,avx2,fma")]
-unsafe fn block_avx512(st: &Stepper, s: Shape, io: BlockIo, z: &mut [f64], y: &mut [f64]) {
+unsafe fn block_avx512(
+    st: &Stepper,
+    s: Shape,
+    io: BlockIo,
+    buf: Buffers,
+    ctl: Option<(&mut Control, &mut Thermostat)>,
+) {
     // SAFETY: this function's features include those of `Avx512`.
-    unsafe { st.block::<Avx512, 8>(s, io, z, y) }
+    unsafe { st.block::<Avx512, 8>(s, io, buf, ctl) }
 }
 
 #[cfg(test)]
@@ -272,6 +555,13 @@ mod tests {
         u[(n - 1, 1)] += 20.0;
         for j in 2..m {
             u[(rng.random_range(0..n), j)] = 1.0;
+        }
+        // Heaters for the thermostat test: input 2 at node 0, input 3 at the middle node.
+        if m > 3 {
+            u.column_mut(2).fill(0.0);
+            u.column_mut(3).fill(0.0);
+            u[(0, 2)] = 1.0;
+            u[(n / 2, 3)] = 1.0;
         }
         let c = (0..n).map(|_| rng.random_range(1e4..2e7)).collect();
         let mut kinds = vec![InputKind::Temperature; 2];
@@ -340,6 +630,135 @@ mod tests {
                     }
                 }
                 assert!(worst < 1e-11, "n {n}, m {m}, {kernel:?}: worst {worst:e} K");
+            }
+        }
+    }
+
+    /// The thermostat block run against `step_thermostat` step by step: every form, both
+    /// routes, sizes across the panel boundaries, a night setback (so heaters switch between
+    /// off, modulating and full), one channel disabled in a second run. Fractions to 1e-9
+    /// and temperatures to 1e-9 K: both solve the same box problems, whose right-hand sides
+    /// differ by the order of rounding (~1e-14 K); the solution moves by that over the
+    /// influence (~1e-2 K per unit fraction), so 1e-9 leaves a wide margin and still catches
+    /// any wrong term (a heater's power alone moves a zone by ~1 K).
+    #[test]
+    fn thermostat_block_run_equals_step_by_step() {
+        for (n, m) in [(5, 4), (9, 6), (40, 10), (70, 12)] {
+            let sys = chain(n, m, 7 * n as u64);
+            let channels = [
+                crate::ControlChannel {
+                    weights: vec![(2, 2500.0)],
+                    output: 0,
+                },
+                crate::ControlChannel {
+                    weights: vec![(3, 1500.0)],
+                    output: 1,
+                },
+            ];
+            // Readouts: some rows controlled, some not; every row controlled; more free rows
+            // than states.
+            let many: Vec<usize> = (0..2 * n).map(|i| i % n).collect();
+            let layouts = [
+                (vec![0, n / 2, n - 1], vec![n / 2, 0]),
+                (vec![0, n / 2], vec![]),
+                (vec![0, n / 2, n - 1], many),
+            ];
+            for ((inst, mean), route) in layouts
+                .iter()
+                .flat_map(|l| [(l, Route::Modal), (l, Route::Block)])
+            {
+                let (pi, pm) = (inst.len(), mean.len());
+                let inst = Readout::nodes(inst, n, m);
+                let mean = Readout::nodes(mean, n, m);
+                let d = Discretization::new(&sys, 3600.0, route).unwrap();
+                let forms = if route == Route::Modal {
+                    Kernel::available()
+                } else {
+                    vec![Kernel::detect()]
+                };
+                for kernel in forms {
+                    let mut a = Stepper::new(&d, &inst, &mean)
+                        .unwrap()
+                        .with_control(&channels)
+                        .unwrap();
+                    a.kernel = kernel;
+                    a.set_state(&vec![14.0; n]);
+                    let mut b = a.clone();
+                    let mut worst = 0.0_f64;
+                    let mut switched = [0usize; 3];
+                    for (call, steps, enabled) in
+                        [(0_u64, 200_usize, [true, true]), (1, 53, [true, false])]
+                    {
+                        let mut u = inputs(m, steps, 40 + call, -12.0);
+                        // The heater inputs carry no other heat.
+                        for k in 0..=steps {
+                            u[k * m + 2] = 0.0;
+                            u[k * m + 3] = 0.0;
+                        }
+                        let set: Vec<f64> = (0..steps * 2)
+                            .map(|i| {
+                                if (i / 2) % 24 < 7 {
+                                    16.0
+                                } else {
+                                    20.0 + (i % 2) as f64
+                                }
+                            })
+                            .collect();
+                        let mut fb = vec![0.0; steps * 2];
+                        let (mut yi, mut ym) = (vec![0.0; steps * pi], vec![0.0; steps * pm]);
+                        b.run_thermostat(&u, &set, &enabled, &mut fb, &mut yi, &mut ym);
+                        let mut fa = [0.0; 2];
+                        for k in 0..steps {
+                            let mut u_k = u[k * m..(k + 1) * m].to_vec();
+                            a.step_thermostat(
+                                &mut u_k,
+                                &u[(k + 1) * m..(k + 2) * m],
+                                &set[k * 2..k * 2 + 2],
+                                &enabled,
+                                &mut fa,
+                            );
+                            for c in 0..2 {
+                                worst = worst.max((fa[c] - fb[k * 2 + c]).abs());
+                                switched[if fa[c] == 0.0 {
+                                    0
+                                } else if fa[c] == 1.0 {
+                                    2
+                                } else {
+                                    1
+                                }] += 1;
+                            }
+                            for (r, v) in a.instant().iter().enumerate() {
+                                worst = worst.max((v - yi[k * pi + r]).abs());
+                            }
+                            for (r, v) in a.mean().iter().enumerate() {
+                                worst = worst.max((v - ym[k * pm + r]).abs());
+                            }
+                        }
+                        for (x, y) in a
+                            .instant()
+                            .iter()
+                            .zip(b.instant())
+                            .chain(a.mean().iter().zip(b.mean()))
+                        {
+                            worst = worst.max((x - y).abs());
+                        }
+                        let (mut xa, mut xb) = (vec![0.0; n], vec![0.0; n]);
+                        a.state_into(&mut xa);
+                        b.state_into(&mut xb);
+                        for (x, y) in xa.iter().zip(&xb) {
+                            worst = worst.max((x - y).abs());
+                        }
+                    }
+                    assert!(
+                        worst < 1e-9,
+                        "n {n}, {route:?}, {kernel:?}: worst {worst:e}"
+                    );
+                    // The run exercised every regime of the heaters.
+                    assert!(
+                        switched.iter().all(|&s| s > 0),
+                        "n {n}: regimes {switched:?}"
+                    );
+                }
             }
         }
     }
