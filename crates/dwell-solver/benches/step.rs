@@ -7,10 +7,14 @@
 //! (1,300-square) it takes seconds, so `setup/block` stops at 160 states; its stepping is
 //! still measured at 640.
 //!
+//! `year_block` is the same year through `Stepper::run_known` (the inputs known in advance:
+//! products over blocks of steps); `year_thermostat_block` through `Stepper::run_thermostat`
+//! with two capacity-limited thermostats (nodes 0 and n/2, 2.5 and 1.5 kW, 20 °C).
+//!
 //! Run: `cargo bench -p dwell-solver --bench step -- --warm-up-time 1 --measurement-time 3`.
 
 use criterion::{black_box, criterion_group, criterion_main, BenchmarkId, Criterion};
-use dwell_solver::{Discretization, Readout, Route, Stepper};
+use dwell_solver::{ControlChannel, Discretization, Readout, Route, Stepper};
 
 #[path = "../tests/common/mod.rs"]
 mod common;
@@ -69,5 +73,86 @@ fn year(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, setup, year);
+fn year_block(c: &mut Criterion) {
+    let mut group = c.benchmark_group("year_block");
+    group.sample_size(20);
+    for n in SIZES {
+        let sys = common::random_network(n as u64, n, 8, true);
+        let m = sys.inputs();
+        let series = common::input_series(n as u64, m, common::YEAR_H, 0.0, 2000.0);
+        let flat: Vec<f64> = series.iter().flatten().copied().collect();
+        let readout = Readout::nodes(&[0, n / 2, n - 1], n, m);
+        let start = vec![15.0; n];
+        let (mut yi, mut ym) = (vec![0.0; 3 * common::YEAR_H], vec![0.0; 3 * common::YEAR_H]);
+        for (route, name) in routes() {
+            let d = Discretization::new(&sys, 3600.0, route).unwrap();
+            let mut s = Stepper::new(&d, &readout, &readout).unwrap();
+            group.bench_function(BenchmarkId::new(name, n), |b| {
+                b.iter(|| {
+                    s.set_state(&start);
+                    s.run_known(black_box(&flat), &mut yi, &mut ym);
+                    black_box(ym[0])
+                })
+            });
+        }
+    }
+    group.finish();
+}
+
+fn year_thermostat_block(c: &mut Criterion) {
+    let mut group = c.benchmark_group("year_thermostat_block");
+    group.sample_size(20);
+    for n in SIZES {
+        let sys = common::random_network(n as u64, n, 8, true);
+        let m = sys.inputs();
+        // Heat inputs 2 and 3 drive the thermostats (no other heat in them).
+        let mut series = common::input_series(n as u64, m, common::YEAR_H, 0.0, 2000.0);
+        for u in &mut series {
+            u[2] = 0.0;
+            u[3] = 0.0;
+        }
+        let flat: Vec<f64> = series.iter().flatten().copied().collect();
+        let readout = Readout::nodes(&[0, n / 2, n - 1], n, m);
+        let channels = [
+            ControlChannel {
+                weights: vec![(2, 2500.0)],
+                output: 0,
+            },
+            ControlChannel {
+                weights: vec![(3, 1500.0)],
+                output: 1,
+            },
+        ];
+        let start = vec![15.0; n];
+        let sets = vec![20.0; 2 * common::YEAR_H];
+        let mut f = vec![0.0; 2 * common::YEAR_H];
+        let (mut yi, mut ym) = (vec![0.0; 3 * common::YEAR_H], vec![0.0; 3 * common::YEAR_H]);
+        let d = Discretization::new(&sys, 3600.0, Route::Modal).unwrap();
+        let Ok(s) = Stepper::new(&d, &readout, &readout)
+            .unwrap()
+            .with_control(&channels)
+        else {
+            // A random network whose heater cannot reach its node within a step.
+            continue;
+        };
+        let mut s = s;
+        group.bench_function(BenchmarkId::new("modal", n), |b| {
+            b.iter(|| {
+                s.set_state(&start);
+                s.run_thermostat(
+                    black_box(&flat),
+                    &sets,
+                    &[true, true],
+                    &mut f,
+                    &mut yi,
+                    &mut ym,
+                );
+                black_box(ym[0])
+            })
+        });
+    }
+    group.finish();
+}
+
+criterion_group!(benches, setup, year, year_block, year_thermostat_block);
 criterion_main!(benches);

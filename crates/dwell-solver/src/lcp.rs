@@ -102,31 +102,8 @@ pub(crate) fn solve(
     scratch: &mut LcpScratch,
 ) -> usize {
     let q = r.len();
-    // Every heater off before and wanted off now (`r ≤ 0`, e.g. summer): `f = 0` gives
-    // `y = −r ≥ 0` for every index, the solution.
-    if f.iter().all(|&v| v == 0.0) && r.iter().all(|&v| v <= 0.0) {
+    if shortcut(r, free, f, scratch) {
         return 0;
-    }
-    if let Some(inv) = &scratch.inverse {
-        // Every index free and the linear solve inside the box: then `y = 0` everywhere,
-        // which is the (unique) solution.
-        if free.iter().all(|&x| x) {
-            let trial = &mut scratch.trial;
-            let mut inside = true;
-            for i in 0..q {
-                let v: f64 = inv[i * q..(i + 1) * q]
-                    .iter()
-                    .zip(r)
-                    .map(|(a, b)| a * b)
-                    .sum();
-                inside &= (0.0..=1.0).contains(&v);
-                trial[i] = v;
-            }
-            if inside {
-                f.copy_from_slice(&trial[..q]);
-                return 0;
-            }
-        }
     }
     for i in 0..q {
         if !free[i] {
@@ -163,6 +140,41 @@ pub(crate) fn solve(
     }
     polish(m, r, free, f, scratch);
     sweeps
+}
+
+/// The two cases answered without a solve, checked first by [`solve`] (and inlined into the
+/// block runs' step loop); `true` with `f` set when one applies:
+///
+/// - every heater off before (`f = 0`) and wanted off now (`r ≤ 0`, e.g. summer): `f = 0`
+///   gives `y = −r ≥ 0` for every index, the solution;
+/// - with `M⁻¹` kept, every index free and `M⁻¹ r` inside the box: then `y = 0` everywhere,
+///   the solution (unique for these matrices).
+#[inline(always)]
+pub(crate) fn shortcut(r: &[f64], free: &[bool], f: &mut [f64], scratch: &mut LcpScratch) -> bool {
+    let q = r.len();
+    if f.iter().all(|&v| v == 0.0) && r.iter().all(|&v| v <= 0.0) {
+        return true;
+    }
+    if let Some(inv) = &scratch.inverse {
+        if free.iter().all(|&x| x) {
+            let trial = &mut scratch.trial;
+            let mut inside = true;
+            for i in 0..q {
+                let v: f64 = inv[i * q..(i + 1) * q]
+                    .iter()
+                    .zip(r)
+                    .map(|(a, b)| a * b)
+                    .sum();
+                inside &= (0.0..=1.0).contains(&v);
+                trial[i] = v;
+            }
+            if inside {
+                f.copy_from_slice(&trial[..q]);
+                return true;
+            }
+        }
+    }
+    false
 }
 
 /// The active-set solve; `true` (and `f` set) when a guess passed every check.

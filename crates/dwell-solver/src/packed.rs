@@ -111,6 +111,12 @@ impl Kernel {
     /// The fastest form this processor supports, or a narrower one named by the environment
     /// variable `DWELL_KERNEL` (`portable`, `avx2`; for benchmarks).
     pub(crate) fn detect() -> Self {
+        // Read once per process: every stepper asks, and a sweep builds thousands.
+        static FORM: std::sync::OnceLock<Kernel> = std::sync::OnceLock::new();
+        *FORM.get_or_init(Self::detect_now)
+    }
+
+    fn detect_now() -> Self {
         let cap = std::env::var("DWELL_KERNEL").unwrap_or_default();
         if cap == "portable" {
             return Kernel::Portable;

@@ -344,30 +344,36 @@ unsafe fn thermostat_steps<V: Lane8>(
             let xi = z.as_ptr().add(j * npad);
             for c in 0..q {
                 let r = ctl.row_state.as_ptr().add(c * np).cast::<f64>();
-                let mut acc = V::zero();
+                // Two chains (even and odd panels): half the latency of one.
+                let mut acc = [V::zero(); 2];
                 for p in 0..np {
                     let off = p * PANEL;
-                    acc = V::fmadd(
+                    acc[p % 2] = V::fmadd(
                         V::load(&*line(r.add(off))),
                         V::load(&*line(xi.add(off))),
-                        acc,
+                        acc[p % 2],
                     );
                 }
-                let free = acc.sum() + cb[j * ld_c + c];
+                let free = V::add(acc[0], acc[1]).sum() + cb[j * ld_c + c];
                 ctl.rhs[c] = if th.enabled[c] {
                     th.setpoints[k * q + c] - free
                 } else {
                     0.0
                 };
             }
-            ctl.sweeps = lcp::solve(
-                &ctl.influence,
-                &ctl.rhs,
-                th.enabled,
-                &mut ctl.fraction,
-                &mut ctl.scratch,
-            );
-            th.fractions[k * q..(k + 1) * q].copy_from_slice(&ctl.fraction);
+            ctl.sweeps = if lcp::shortcut(&ctl.rhs, th.enabled, &mut ctl.fraction, &mut ctl.scratch)
+            {
+                0
+            } else {
+                lcp::solve(
+                    &ctl.influence,
+                    &ctl.rhs,
+                    th.enabled,
+                    &mut ctl.fraction,
+                    &mut ctl.scratch,
+                )
+            };
+            V::copy(&mut th.fractions[k * q..(k + 1) * q], &ctl.fraction);
             // The heaters that run, as (fraction, gain row): a local list, so the stores
             // below cannot be taken to change it.
             let mut on = [(0.0, 0usize); 8];
