@@ -155,10 +155,6 @@ pub struct CacheCounts {
 /// for always 1)])`.
 type ScheduledInput = (usize, Vec<(f64, Option<Arc<Vec<f64>>>)>);
 
-/// A heater input, its heater and the thermostat channels that feed it: `(input, heater,
-/// [(channel, full power (W))])`.
-type HeaterShares = (usize, usize, Vec<(usize, f64)>);
-
 /// The inputs of one variant, as references into the shared tables.
 /// Every table is indexed by the step `k` counted from the period's start, so filling needs
 /// no division and no clock.
@@ -591,20 +587,14 @@ impl<'w> SweepContext<'w> {
         };
         let row = |k: usize| &u_run[k * m..(k + 1) * m];
         // Each channel's setpoint at each step: the highest of its heaters' schedules.
-        let sets: Vec<f64> = if use_channels {
-            (0..steps)
-                .flat_map(|k| {
-                    channel_tables.iter().map(move |tables| {
-                        tables
-                            .iter()
-                            .map(|t| t[k])
-                            .fold(f64::NEG_INFINITY, f64::max)
-                    })
-                })
-                .collect()
-        } else {
-            vec![]
-        };
+        let mut sets = vec![f64::NEG_INFINITY; if use_channels { steps * q } else { 0 }];
+        for (c, tables) in channel_tables.iter().enumerate() {
+            for t in tables {
+                for (k, set) in sets.iter_mut().skip(c).step_by(q.max(1)).enumerate() {
+                    *set = set.max(t[k]);
+                }
+            }
+        }
         // The thermostats' share of each heater input: (input, channel, full power (W)).
         let shares: Vec<(usize, usize, f64)> = channels
             .iter()
@@ -693,7 +683,6 @@ impl<'w> SweepContext<'w> {
         let nh = model.heaters.len();
         let mut heater_j = vec![0.0; nh];
         let mut purchased_j = vec![0.0; nh];
-        let mut heater_hour = vec![0.0; nh];
         let zone_heaters: Vec<Vec<usize>> = house
             .zones
             .iter()
@@ -707,70 +696,68 @@ impl<'w> SweepContext<'w> {
                     .collect()
             })
             .collect();
-        // Input `j` of step `k` as the step applied it: the table's value plus the
-        // thermostats' heat (`shares` of input `j`).
-        let applied = |k: usize, j: usize, shares: &[(usize, f64)]| {
-            let mut v = row(k)[j];
-            for &(c, w) in shares {
-                v += fractions[k * q + c] * w;
-            }
-            v
-        };
-        let shares_of = |j: usize| -> Vec<(usize, f64)> {
-            if !use_channels {
-                return vec![];
-            }
-            shares
-                .iter()
-                .filter(|s| s.0 == j)
-                .map(|&(_, c, w)| (c, w))
-                .collect()
-        };
-        let heater_shares: Vec<HeaterShares> = heater_list
-            .iter()
-            .map(|&(j, hi)| (j, hi, shares_of(j)))
+        // Each heater's power at each step as the step applied it (W): the table's value
+        // plus the thermostats' heat; then its energy, purchased energy and the hourly
+        // total of the heaters that belong to a zone.
+        let in_zone: Vec<bool> = (0..nh)
+            .map(|hi| zone_heaters.iter().any(|hs| hs.contains(&hi)))
             .collect();
-        let first_shares = shares_of(0);
-        let mut peak = 0.0f64;
+        let mut hourly = vec![0.0; hours];
+        let mut power = vec![0.0; steps];
         let h = opts.step_s;
-        for hour in 0..hours {
-            heater_hour.iter_mut().for_each(|v| *v = 0.0);
-            for s in 0..sph {
-                let k = hour * sph + s;
-                for (j, hi, sh) in &heater_shares {
-                    let u_j = applied(k, *j, sh);
-                    if u_j == 0.0 {
-                        // Nothing to add (the sums below would each add an exact 0).
-                        continue;
+        for &(j, hi) in &heater_list {
+            for (k, pk) in power.iter_mut().enumerate() {
+                *pk = u_run[k * m + j];
+            }
+            if use_channels {
+                for &(sj, c, w) in &shares {
+                    if sj == j {
+                        for (k, pk) in power.iter_mut().enumerate() {
+                            *pk += fractions[k * q + c] * w;
+                        }
                     }
-                    let heater = &model.heaters[*hi];
-                    let q_j = net.injected[*j] * u_j * h;
-                    heater_j[*hi] += q_j;
-                    heater_hour[*hi] += u_j / sph as f64;
-                    let cop = if heater.cop_curve.is_empty() {
-                        heater.efficiency
-                    } else {
-                        let t_out = 0.5
-                            * (if m > 0 {
-                                applied(k, 0, &first_shares)
-                            } else {
-                                f64::NAN
-                            } + row(k + 1).first().copied().unwrap_or(f64::NAN));
-                        cop_at(heater, t_out)
-                    };
-                    purchased_j[*hi] += q_j / cop;
                 }
             }
+            let heater = &model.heaters[hi];
+            let per_w = net.injected[j] * h;
+            let delivered: f64 = power.iter().sum::<f64>() * per_w;
+            heater_j[hi] += delivered;
+            purchased_j[hi] += if heater.cop_curve.is_empty() {
+                delivered / heater.efficiency
+            } else {
+                // The outdoor air over each step (the mean of its two ends), as input 0.
+                let first = if use_channels {
+                    shares.iter().filter(|s| s.0 == 0).collect::<Vec<_>>()
+                } else {
+                    vec![]
+                };
+                power
+                    .iter()
+                    .enumerate()
+                    .filter(|(_, &pk)| pk != 0.0)
+                    .map(|(k, &pk)| {
+                        let mut u0 = row(k).first().copied().unwrap_or(f64::NAN);
+                        for &&(_, c, w) in &first {
+                            u0 += fractions[k * q + c] * w;
+                        }
+                        let t_out = 0.5 * (u0 + row(k + 1).first().copied().unwrap_or(f64::NAN));
+                        pk * per_w / cop_at(heater, t_out)
+                    })
+                    .sum::<f64>()
+            };
+            if in_zone[hi] {
+                for (hour, chunk) in hourly.iter_mut().zip(power.chunks_exact(sph)) {
+                    *hour += chunk.iter().sum::<f64>() / sph as f64;
+                }
+            }
+        }
+        let peak = hourly.iter().copied().fold(0.0f64, f64::max);
+        for hour in 0..hours {
             let k_end = hour * sph + sph - 1;
             min_air = air[k_end * p_i..(k_end + 1) * p_i]
                 .iter()
                 .copied()
                 .fold(min_air, f64::min);
-            let total: f64 = zone_heaters
-                .iter()
-                .map(|hs| hs.iter().map(|&hi| heater_hour[hi]).sum::<f64>())
-                .sum();
-            peak = peak.max(total);
         }
         let kwh = |j: f64| j / 3.6e6;
         let heating_kwh: f64 = zone_heaters

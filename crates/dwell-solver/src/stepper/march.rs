@@ -345,16 +345,25 @@ unsafe fn thermostat_steps<V: Lane8>(
             for c in 0..q {
                 let r = ctl.row_state.as_ptr().add(c * np).cast::<f64>();
                 // Two chains (even and odd panels): half the latency of one.
-                let mut acc = [V::zero(); 2];
-                for p in 0..np {
+                let term = |p: usize, acc: V| {
                     let off = p * PANEL;
-                    acc[p % 2] = V::fmadd(
+                    V::fmadd(
                         V::load(&*line(r.add(off))),
                         V::load(&*line(xi.add(off))),
-                        acc[p % 2],
-                    );
+                        acc,
+                    )
+                };
+                let (mut even, mut odd) = (V::zero(), V::zero());
+                let mut p = 0;
+                while p + 2 <= np {
+                    even = term(p, even);
+                    odd = term(p + 1, odd);
+                    p += 2;
                 }
-                let free = V::add(acc[0], acc[1]).sum() + cb[j * ld_c + c];
+                if p < np {
+                    even = term(p, even);
+                }
+                let free = V::add(even, odd).sum() + cb[j * ld_c + c];
                 ctl.rhs[c] = if th.enabled[c] {
                     th.setpoints[k * q + c] - free
                 } else {
@@ -373,7 +382,13 @@ unsafe fn thermostat_steps<V: Lane8>(
                     &mut ctl.scratch,
                 )
             };
-            V::copy(&mut th.fractions[k * q..(k + 1) * q], &ctl.fraction);
+            // One by one: a masked vector store of a few lanes is slow on some processors.
+            for (dst, &fc) in th.fractions[k * q..(k + 1) * q]
+                .iter_mut()
+                .zip(&ctl.fraction)
+            {
+                *dst = fc;
+            }
             // The heaters that run, as (fraction, gain row): a local list, so the stores
             // below cannot be taken to change it.
             let mut on = [(0.0, 0usize); 8];
@@ -387,7 +402,8 @@ unsafe fn thermostat_steps<V: Lane8>(
                     count += 1;
                 }
             }
-            let many = ctl.fraction.iter().filter(|&&f| f != 0.0).count() > on.len();
+            let many =
+                count == on.len() && ctl.fraction.iter().filter(|&&f| f != 0.0).count() > count;
             let vj = v.as_ptr().add(j * npad);
             let next = z.as_mut_ptr().add((j + 1) * npad);
             let gains = ctl.gain_lines.as_ptr();
