@@ -39,7 +39,7 @@ mod network;
 pub use builder::{InputId, NetworkBuilder, NodeId};
 pub use dwell_solver::{InputKind, RcSystem};
 pub use error::NetworkError;
-pub use network::{Hold, InputInfo, LinearMap, Network};
+pub use network::{Hold, InputInfo, LinearMap, Network, NodeMap};
 
 #[cfg(test)]
 mod tests;

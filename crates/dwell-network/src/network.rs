@@ -61,6 +61,48 @@ impl LinearMap {
     }
 }
 
+/// The temperature of one original node as a sparse linear map of the states and inputs,
+/// `y = Σ c·x[s] + u·U`: a kept node is its own state (`[(s, 1.0)]`); an eliminated massless
+/// node depends on the states of the kept nodes next to its massless piece only
+/// (`kron.rs`), so the maps of a large network stay small.
+#[derive(Clone, Debug, PartialEq)]
+pub struct NodeMap {
+    /// `(state index, coefficient)` pairs, state indices increasing.
+    pub x: Vec<(usize, f64)>,
+    /// Coefficients on the inputs (length m).
+    pub u: Vec<f64>,
+}
+
+impl NodeMap {
+    /// Evaluates the map.
+    pub fn eval(&self, x: &[f64], u: &[f64]) -> f64 {
+        self.x.iter().map(|&(s, c)| c * x[s]).sum::<f64>()
+            + self.u.iter().zip(u).map(|(a, b)| a * b).sum::<f64>()
+    }
+
+    /// The same map with dense state coefficients (`n` states).
+    pub fn to_dense(&self, n: usize) -> LinearMap {
+        let mut x = vec![0.0; n];
+        for &(s, c) in &self.x {
+            x[s] += c;
+        }
+        LinearMap {
+            x,
+            u: self.u.clone(),
+        }
+    }
+
+    /// `target ← target + k·self`.
+    pub fn add_scaled_to(&self, target: &mut LinearMap, k: f64) {
+        for &(s, c) in &self.x {
+            target.x[s] += k * c;
+        }
+        for (a, b) in target.u.iter_mut().zip(&self.u) {
+            *a += k * b;
+        }
+    }
+}
+
 /// A network reduced to `C ẋ = −K x + U u`, with readouts for every original node and for the
 /// heat flow through each group of boundary links.
 #[derive(Clone, Debug)]
@@ -71,8 +113,9 @@ pub struct Network {
     pub inputs: Vec<InputInfo>,
     /// The state space.
     pub system: RcSystem,
-    /// Temperature (°C) of every original node, kept or eliminated, as a map of `(x, u)`.
-    pub node_temperature: BTreeMap<String, LinearMap>,
+    /// Temperature (°C) of every original node, kept or eliminated, as a sparse map of
+    /// `(x, u)`.
+    pub node_temperature: BTreeMap<String, NodeMap>,
     /// Heat flow (W) leaving the network through each group of boundary links, positive
     /// outwards, as a map of `(x, u)`.
     pub boundary_flow: BTreeMap<String, LinearMap>,

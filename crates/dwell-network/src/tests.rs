@@ -185,3 +185,36 @@ fn negative_values_and_empty_networks_are_refused() {
     b.link_boundary(a, out, 6.0, "walls");
     assert!(matches!(b.build(), Err(NetworkError::Empty)));
 }
+
+#[test]
+fn an_eliminated_node_reads_only_the_states_next_to_its_piece() {
+    // Two rooms, each with a wall of two massless surface nodes to outdoors: the pieces are
+    // the walls; a surface temperature depends on its own room's air only.
+    let mut b = NetworkBuilder::new();
+    let out = b.add_input("outdoor_air_c", Hold::Linear);
+    let a = b.add_node("a.air", 1e5);
+    let c = b.add_node("c.air", 2e5);
+    b.link(a, c, 4.0);
+    for (room, name) in [(a, "a"), (c, "c")] {
+        let s1 = b.add_node(&format!("{name}.in"), 0.0);
+        let s2 = b.add_node(&format!("{name}.out"), 0.0);
+        b.link(room, s1, 8.0);
+        b.link(s1, s2, 2.0);
+        b.link_boundary(s2, out, 25.0, "walls");
+    }
+    let net = b.build().unwrap();
+    assert_eq!((net.states.len(), net.eliminated), (2, 4));
+    let map = &net.node_temperature["c.in"];
+    assert_eq!(map.x.len(), 1, "{map:?}");
+    assert_eq!(map.x[0].0, net.state_index("c.air").unwrap());
+    // Series 8, 2, 25 W/K: the inner surface sits at (1/2 + 1/25)/(1/8 + 1/2 + 1/25) of the
+    // way from outdoors to the air (voltage divider).
+    let share = (1.0 / 2.0 + 1.0 / 25.0) / (1.0 / 8.0 + 1.0 / 2.0 + 1.0 / 25.0);
+    assert!((map.x[0].1 - share).abs() < 1e-14, "{map:?}");
+    assert!((map.u[0] - (1.0 - share)).abs() < 1e-14, "{map:?}");
+    // The dense form evaluates the same.
+    let (x, u) = ([21.0, 19.0], [-5.0]);
+    let dense = map.to_dense(2);
+    assert!((dense.eval(&x, &u) - map.eval(&x, &u)).abs() < 1e-12);
+    assert_eq!(net.node_temperature["a.air"].x, vec![(0, 1.0)]);
+}

@@ -5,11 +5,16 @@
 //! - below [`FAER_FROM_STATES`] states, nalgebra's `SymmetricEigen` (Householder
 //!   tridiagonalisation, then implicit symmetric QR; Golub & Van Loan §8.3): cheapest for
 //!   small matrices, where the fixed costs of a blocked code dominate;
-//! - from [`FAER_FROM_STATES`] states up, faer's `self_adjoint_evd` (blocked Householder
+//! - from [`FAER_FROM_STATES`] states up, faer's algorithms (blocked Householder
 //!   tridiagonalisation with level-3 updates, then Cuppen's divide and conquer on the
 //!   tridiagonal matrix; Golub & Van Loan §8.4.3): at 2,000 states about 3 s against ~24 s
 //!   for nalgebra (wall clock under the same load, docs/performance.md), where nalgebra's
-//!   unblocked tridiagonalisation and the rotations of QR applied to `V` dominate.
+//!   unblocked tridiagonalisation and the rotations of QR applied to `V` dominate. They are
+//!   assembled in `dc.rs` from faer's public pieces so that the workspace stays small: `S`
+//!   is tridiagonalised in its own storage and the top merges of divide and conquer are done
+//!   there without faer's two extra `n × n` matrices (at 2,000 states the decomposition's
+//!   peak fell from `S` + `V` + 97 MB to `S`, then `V` + 32 MB). Up to `dc::LEAF` (512)
+//!   states the numbers are faer's `self_adjoint_evd`'s, bit for bit (tested).
 //!
 //! Both are backward stable: the computed pairs are exact for some `S + E` with
 //! `‖E‖ = O(ε‖S‖)`, so each eigenvalue is within `O(ε‖S‖)` of the exact one (Weyl) and the
@@ -17,7 +22,12 @@
 //!
 //! faer runs **sequentially** here (`Par::Seq`): the modal route is one `O(n³)` call per
 //! discretisation, studies already run discretisations in parallel (one per variant on
-//! rayon's pool), and a single thread keeps the result independent of the thread count.
+//! rayon's pool), and a single thread keeps the result independent of the thread count
+//! (with 2 threads the smallest eigenvalue of a 2,000-state test matrix moved in the 12th
+//! significant digit, since the blocked products then sum in another order). Two threads
+//! (faer's `rayon` feature, `Par::rayon(2)`) were tried at 2,000 states and gave no clear
+//! wall-clock gain on the shared two-core machine (docs/performance.md), so they are not
+//! built in.
 //! faer's products use AVX-512 where the processor has it; the upper vector state is cleared
 //! afterwards (`clear_upper_vector_state`) so no SSE code pays for it.
 //!
@@ -38,6 +48,7 @@ use faer::linalg::evd::{
 use faer::{MatMut, MatRef, Par, Spec};
 use nalgebra::{DMatrix, SymmetricEigen};
 
+use crate::dc::{symmetric_eigen_lean, LEAF};
 use crate::SolverError;
 
 /// From this many states up, faer's blocked divide-and-conquer solver is used (below it,
@@ -80,11 +91,9 @@ pub(crate) fn symmetric_eigen(
             Ok((eig.eigenvalues.as_slice().to_vec(), eig.eigenvectors))
         }
         Backend::Faer => {
-            let n = s.nrows();
-            let mut values = vec![0.0; n];
-            let mut vectors = DMatrix::<f64>::zeros(n, n);
-            faer_evd(&s, &mut values, Some(&mut vectors))?;
-            Ok((values, vectors))
+            let done = symmetric_eigen_lean(s, Par::Seq, LEAF);
+            clear_upper_vector_state();
+            done
         }
     }
 }

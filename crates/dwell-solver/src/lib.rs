@@ -47,6 +47,7 @@
 
 mod block;
 mod control;
+mod dc;
 mod discretization;
 mod eigen;
 mod error;

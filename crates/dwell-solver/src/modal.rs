@@ -54,6 +54,20 @@ pub(crate) fn symmetric_rate_matrix(sys: &RcSystem) -> DMatrix<f64> {
     })
 }
 
+/// `S = C^{-1/2} K C^{-1/2}` (1/s) formed in `k`'s storage (the same numbers as
+/// [`symmetric_rate_matrix`], without a second `n × n` matrix).
+pub(crate) fn symmetric_rate_matrix_in_place(mut k: DMatrix<f64>, c: &[f64]) -> DMatrix<f64> {
+    let n = c.len();
+    for j in 0..n {
+        for i in j..n {
+            let v = 0.5 * (k[(i, j)] + k[(j, i)]) / (c[i] * c[j]).sqrt();
+            k[(i, j)] = v;
+            k[(j, i)] = v;
+        }
+    }
+    k
+}
+
 /// Eigenvalues of `S`, clamped as described in the module docs (1/s).
 pub(crate) fn clamp_rates(raw: impl Iterator<Item = f64>, n: usize) -> Vec<f64> {
     let raw: Vec<f64> = raw.collect();
@@ -77,9 +91,13 @@ pub(crate) struct Modes {
 
 /// Decomposes `S` (one `O(n³)` eigen-decomposition, `eigen.rs`).
 pub(crate) fn modes(sys: &RcSystem) -> Result<Modes, SolverError> {
+    modes_of(symmetric_rate_matrix(sys), sys)
+}
+
+/// Decomposes `s`, the `S` of `sys` (consumed: its storage is reused).
+pub(crate) fn modes_of(s: DMatrix<f64>, sys: &RcSystem) -> Result<Modes, SolverError> {
     let n = sys.states();
     let m = sys.inputs();
-    let s = symmetric_rate_matrix(sys);
     let (raw, v) = symmetric_eigen(s, Backend::for_states(n))?;
     let lambda = clamp_rates(raw.into_iter(), n);
     let sqrt_c: Vec<f64> = sys.capacitance.iter().map(|c| c.sqrt()).collect();
@@ -137,8 +155,13 @@ pub(crate) fn step_coefficients(
     parts
 }
 
-pub(crate) fn modal_parts(sys: &RcSystem, h: f64) -> Result<ModalParts, SolverError> {
-    let md = modes(sys)?;
+/// The modal step of `sys` over `h`, `s` being its `S` (consumed).
+pub(crate) fn modal_parts(
+    s: DMatrix<f64>,
+    sys: &RcSystem,
+    h: f64,
+) -> Result<ModalParts, SolverError> {
+    let md = modes_of(s, sys)?;
     Ok(step_coefficients(
         md.lambda,
         md.to_nodes,

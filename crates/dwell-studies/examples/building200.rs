@@ -53,11 +53,16 @@ fn main() {
     let (t1, c1) = (Instant::now(), cpu_s());
     let (mut st, kept) = match cut {
         None => {
-            let disc = Discretization::new(&net.system, 3600.0, Route::Modal).unwrap();
+            // By value: S is formed in K's storage (32 MB less at the peak).
+            let disc = Discretization::from_system(net.system, 3600.0, Route::Modal).unwrap();
             let t_disc = t1.elapsed();
+            let peak_disc = peak_mb();
             let mut st = Stepper::new(&disc, &rows, &Readout::empty(n, m)).unwrap();
             st.set_state(&x0);
-            eprintln!("discretise {:.3} s", t_disc.as_secs_f64());
+            eprintln!(
+                "discretise {:.3} s, peak memory after it {peak_disc:.0} MB",
+                t_disc.as_secs_f64()
+            );
             (st, n)
         }
         Some(s) => {
