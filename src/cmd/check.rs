@@ -47,7 +47,10 @@ fn row(z: &ZoneLoss, label: &str) -> String {
 /// The plain-text check sheet.
 pub fn table(s: &CheckSummary) -> String {
     let mut out = String::new();
-    out.push_str(&format!("{}: model is valid\n", if s.name.is_empty() { "model" } else { &s.name }));
+    out.push_str(&format!(
+        "{}: model is valid\n",
+        if s.name.is_empty() { "model" } else { &s.name }
+    ));
     out.push_str(&format!(
         "network: {} states, {} inputs, {} massless nodes eliminated; heat capacity {:.1} MJ/K\n",
         s.states, s.inputs, s.eliminated_nodes, s.heat_capacity_mj_k
@@ -59,10 +62,24 @@ pub fn table(s: &CheckSummary) -> String {
     out.push_str("heat-loss coefficient by zone (W/K)\n");
     out.push_str(&format!(
         "{:<22}{:>8}{:>8}{:>9}{:>9}{:>7}{:>8}{:>8}{:>9}{:>10}\n",
-        "zone", "walls", "roof", "floor/gr", "windows", "doors", "vent", "links", "total", "to zones"
+        "zone",
+        "walls",
+        "roof",
+        "floor/gr",
+        "windows",
+        "doors",
+        "vent",
+        "links",
+        "total",
+        "to zones"
     ));
     for z in &s.zones {
-        let label = format!("{} ({}{:.0} m²)", z.zone, if z.heated { "" } else { "unheated, " }, z.floor_area_m2);
+        let label = format!(
+            "{} ({}{:.0} m²)",
+            z.zone,
+            if z.heated { "" } else { "unheated, " },
+            z.floor_area_m2
+        );
         out.push_str(&row(z, &label));
     }
     out.push_str(&row(&s.total, "whole house"));
@@ -74,8 +91,13 @@ pub fn table(s: &CheckSummary) -> String {
         ));
     }
     if !s.constructions.is_empty() {
-        out.push_str("\nconstructions (ISO 6946 surface resistances for the heat-flow direction)\n");
-        out.push_str(&format!("{:<26}{:>12}{:>12}{:>16}\n", "construction", "direction", "U W/(m²K)", "kJ/(m²K)"));
+        out.push_str(
+            "\nconstructions (ISO 6946 surface resistances for the heat-flow direction)\n",
+        );
+        out.push_str(&format!(
+            "{:<26}{:>12}{:>12}{:>16}\n",
+            "construction", "direction", "U W/(m²K)", "kJ/(m²K)"
+        ));
         for c in &s.constructions {
             out.push_str(&format!(
                 "{:<26}{:>12}{:>12.3}{:>16.1}\n",

@@ -48,10 +48,19 @@ fn split_eq<'a>(flag: &str, s: &'a str) -> anyhow::Result<(&'a str, &'a str)> {
 }
 
 fn read_patch(variant: &str, path: &Path) -> anyhow::Result<Value> {
-    let text = std::fs::read_to_string(path)
-        .map_err(|e| bad_input(format!("variant {variant}: cannot read {}: {e}; check the path", path.display())))?;
+    let text = std::fs::read_to_string(path).map_err(|e| {
+        bad_input(format!(
+            "variant {variant}: cannot read {}: {e}; check the path",
+            path.display()
+        ))
+    })?;
     serde_json::from_str(&text).map_err(|e| {
-        bad_input(format!("variant {variant}: {}:{}:{}: not valid JSON: {e}", path.display(), e.line(), e.column()))
+        bad_input(format!(
+            "variant {variant}: {}:{}:{}: not valid JSON: {e}",
+            path.display(),
+            e.line(),
+            e.column()
+        ))
     })
 }
 
@@ -68,10 +77,18 @@ fn stem(p: &str) -> String {
 /// Runs the command.
 pub fn run(args: CompareArgs) -> anyhow::Result<()> {
     let file = args.model.display().to_string();
-    let text =
-        std::fs::read_to_string(&args.model).map_err(|e| bad_input(format!("cannot read model file {file}: {e}; check the path")))?;
-    let base_value: Value =
-        serde_json::from_str(&text).map_err(|e| bad_input(format!("{file}:{}:{}: not valid JSON: {e}", e.line(), e.column())))?;
+    let text = std::fs::read_to_string(&args.model).map_err(|e| {
+        bad_input(format!(
+            "cannot read model file {file}: {e}; check the path"
+        ))
+    })?;
+    let base_value: Value = serde_json::from_str(&text).map_err(|e| {
+        bad_input(format!(
+            "{file}:{}:{}: not valid JSON: {e}",
+            e.line(),
+            e.column()
+        ))
+    })?;
     if args.variants.is_empty() && args.grids.is_empty() {
         return Err(bad_input(
             "give at least one --variant NAME=PATCH.json or --grid KEY=P1.json,P2.json",
@@ -80,15 +97,21 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
     let mut costs: BTreeMap<String, f64> = BTreeMap::new();
     for c in &args.costs {
         let (n, v) = split_eq("--cost", c)?;
-        let v: f64 = v.parse().map_err(|_| bad_input(format!("--cost {c}: `{v}` is not a number")))?;
+        let v: f64 = v
+            .parse()
+            .map_err(|_| bad_input(format!("--cost {c}: `{v}` is not a number")))?;
         if !(v.is_finite() && v >= 0.0) {
-            return Err(bad_input(format!("--cost {c}: the amount must be zero or more")));
+            return Err(bad_input(format!(
+                "--cost {c}: the amount must be zero or more"
+            )));
         }
         costs.insert(n.to_string(), v);
     }
     if let Some(p) = args.price {
         if !(p.is_finite() && p >= 0.0) {
-            return Err(bad_input(format!("--price {p}: the price must be zero or more")));
+            return Err(bad_input(format!(
+                "--price {p}: the price must be zero or more"
+            )));
         }
     }
     // (variant name, [(part name, patch label, patch)])
@@ -97,7 +120,11 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
         let (name, path) = split_eq("--variant", v)?;
         specs.push((
             name.to_string(),
-            vec![(name.to_string(), path.to_string(), read_patch(name, Path::new(path))?)],
+            vec![(
+                name.to_string(),
+                path.to_string(),
+                read_patch(name, Path::new(path))?,
+            )],
         ));
     }
     let mut lists = Vec::new();
@@ -118,7 +145,11 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
     }
     if !lists.is_empty() {
         for combo in grid(&lists) {
-            let name = combo.iter().map(|(n, _)| n.clone()).collect::<Vec<_>>().join(",");
+            let name = combo
+                .iter()
+                .map(|(n, _)| n.clone())
+                .collect::<Vec<_>>()
+                .join(",");
             let parts = combo.into_iter().filter_map(|(_, p)| p).collect();
             specs.push((name, parts));
         }
@@ -133,8 +164,12 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
         upgrade_cost: None,
     });
     for (name, parts) in specs {
-        let patches: Vec<(String, Value)> = parts.iter().map(|(_, label, v)| (label.clone(), v.clone())).collect();
-        let (m, h) = patched(&base_value, &file, &patches).map_err(|e| bad_input(format!("variant {name}: {e}")))?;
+        let patches: Vec<(String, Value)> = parts
+            .iter()
+            .map(|(_, label, v)| (label.clone(), v.clone()))
+            .collect();
+        let (m, h) = patched(&base_value, &file, &patches)
+            .map_err(|e| bad_input(format!("variant {name}: {e}")))?;
         let cost = match costs.get(&name) {
             Some(c) => Some(*c),
             None => parts
@@ -154,14 +189,25 @@ pub fn run(args: CompareArgs) -> anyhow::Result<()> {
     let known: Vec<&str> = variants
         .iter()
         .map(|v| v.name.as_str())
-        .chain(variants.iter().flat_map(|v| v.parts.iter().map(|p| p.as_str())))
+        .chain(
+            variants
+                .iter()
+                .flat_map(|v| v.parts.iter().map(|p| p.as_str())),
+        )
         .collect();
     for n in costs.keys() {
-        let part_names: Vec<String> = variants.iter().flat_map(|v| v.parts.iter().map(|p| stem(p))).collect();
+        let part_names: Vec<String> = variants
+            .iter()
+            .flat_map(|v| v.parts.iter().map(|p| stem(p)))
+            .collect();
         if !known.contains(&n.as_str()) && !part_names.contains(n) {
             return Err(bad_input(format!(
                 "--cost {n}=…: no variant or patch is called `{n}`; names are {}",
-                variants.iter().map(|v| v.name.as_str()).collect::<Vec<_>>().join(", ")
+                variants
+                    .iter()
+                    .map(|v| v.name.as_str())
+                    .collect::<Vec<_>>()
+                    .join(", ")
             )));
         }
     }
@@ -197,11 +243,30 @@ fn opt(v: Option<f64>, d: usize) -> String {
 }
 
 fn table(c: &Comparison) -> String {
-    let mut o = format!("{}: {} h from {} to {}\nweather: {}\n\n", c.model, c.hours, c.from, c.to, c.weather);
-    let w = c.rows.iter().map(|r| r.variant.chars().count()).max().unwrap_or(8).max(8) + 2;
+    let mut o = format!(
+        "{}: {} h from {} to {}\nweather: {}\n\n",
+        c.model, c.hours, c.from, c.to, c.weather
+    );
+    let w = c
+        .rows
+        .iter()
+        .map(|r| r.variant.chars().count())
+        .max()
+        .unwrap_or(8)
+        .max(8)
+        + 2;
     o.push_str(&format!(
         "{:<w$}{:>11}{:>10}{:>8}{:>9}{:>10}{:>9}{:>10}{:>10}{:>9}\n",
-        "variant", "heat kWh", "Δ kWh", "Δ %", "peak W", "low occ°C", "h out", "money", "cost", "payback"
+        "variant",
+        "heat kWh",
+        "Δ kWh",
+        "Δ %",
+        "peak W",
+        "low occ°C",
+        "h out",
+        "money",
+        "cost",
+        "payback"
     ));
     for r in &c.rows {
         o.push_str(&format!(

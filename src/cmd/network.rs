@@ -42,7 +42,11 @@ pub fn run(args: NetworkArgs) -> anyhow::Result<()> {
     let net = &house.network;
     let a = net.system.a();
     let b = net.system.b();
-    let rows = |m: &nalgebra::DMatrix<f64>| -> Vec<Vec<f64>> { (0..m.nrows()).map(|i| m.row(i).iter().copied().collect()).collect() };
+    let rows = |m: &nalgebra::DMatrix<f64>| -> Vec<Vec<f64>> {
+        (0..m.nrows())
+            .map(|i| m.row(i).iter().copied().collect())
+            .collect()
+    };
     let out = StateSpaceJson {
         states: &net.states,
         inputs: net.inputs.iter().map(|i| i.name.as_str()).collect(),
@@ -57,10 +61,13 @@ pub fn run(args: NetworkArgs) -> anyhow::Result<()> {
         a: rows(&a),
         b: rows(&b),
         capacitance_j_k: &net.system.capacitance,
-        zone_states: house.zones.iter().map(|z| (z.id.as_str(), z.air_state)).collect(),
+        zone_states: house
+            .zones
+            .iter()
+            .map(|z| (z.id.as_str(), z.air_state))
+            .collect(),
     };
     let _ = args.json;
     println!("{}", serde_json::to_string(&out)?);
     Ok(())
 }
-

@@ -6,6 +6,9 @@ pub struct SchemaArgs {}
 
 /// Runs the command.
 pub fn run(_args: SchemaArgs) -> anyhow::Result<()> {
-    println!("{}", serde_json::to_string_pretty(&dwell_model::json_schema())?);
+    println!(
+        "{}",
+        serde_json::to_string_pretty(&dwell_model::json_schema())?
+    );
     Ok(())
 }

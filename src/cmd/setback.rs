@@ -104,7 +104,16 @@ fn table(s: &SetbackStudy) -> String {
     );
     o.push_str(&format!(
         "{:<12}{:<14}{:>9}{:>8}{:>11}{:>10}{:>10}{:>9}{:>9}{:>13}\n",
-        "night", "zone", "setback", "low °C", "reached h", "recover h", "save kWh", "save %", "miss h", "latest start"
+        "night",
+        "zone",
+        "setback",
+        "low °C",
+        "reached h",
+        "recover h",
+        "save kWh",
+        "save %",
+        "miss h",
+        "latest start"
     ));
     for n in &s.nights {
         for z in &n.zones {
@@ -116,7 +125,11 @@ fn table(s: &SetbackStudy) -> String {
                 z.lowest_c,
                 z.hours_to_setback_h
                     .map(|h| format!("{h:.1}"))
-                    .unwrap_or_else(|| if z.setback_c.is_some() { "not".into() } else { "-".into() }),
+                    .unwrap_or_else(|| if z.setback_c.is_some() {
+                        "not".into()
+                    } else {
+                        "-".into()
+                    }),
                 opt(z.recovery_h, 2),
                 z.saving_kwh,
                 opt(z.saving_pct, 1),

@@ -69,7 +69,8 @@ pub struct SimulateArgs {
 pub fn load_weather(path: &Option<PathBuf>) -> anyhow::Result<dwell_weather::WeatherSeries> {
     match path {
         None => Ok(dwell_weather::default_weather()),
-        Some(p) => dwell_weather::read_weather(p, &dwell_weather::ReadOptions::default()).map_err(bad_input),
+        Some(p) => dwell_weather::read_weather(p, &dwell_weather::ReadOptions::default())
+            .map_err(bad_input),
     }
 }
 
@@ -112,7 +113,9 @@ pub fn run(args: SimulateArgs) -> anyhow::Result<()> {
     let result = result?;
     let out = dwell_report::OutputDir::create(&args.out)?;
     let mut written = dwell_report::write_simulation(&out, &result)?;
-    written.extend(dwell_report::write_simulation_inputs(&out, &model, &house, &result)?);
+    written.extend(dwell_report::write_simulation_inputs(
+        &out, &model, &house, &result,
+    )?);
     written.extend(super::chart::draw_simulation(&out, None, None, args.quiet)?);
     if !args.quiet {
         print!("{}", table(&result.summary));
@@ -125,7 +128,15 @@ pub fn run(args: SimulateArgs) -> anyhow::Result<()> {
 
 fn table(s: &dwell_studies::simulate::Summary) -> String {
     let mut o = String::new();
-    o.push_str(&format!("{}: {} h from {} to {}, step {} min, control {:?}\n", s.model, s.hours, s.from, s.to, s.step_s / 60.0, s.control));
+    o.push_str(&format!(
+        "{}: {} h from {} to {}, step {} min, control {:?}\n",
+        s.model,
+        s.hours,
+        s.from,
+        s.to,
+        s.step_s / 60.0,
+        s.control
+    ));
     o.push_str(&format!("weather: {}\n{}\n\n", s.weather, s.start));
     o.push_str(&format!(
         "{:<16}{:>12}{:>11}{:>9}{:>9}{:>9}{:>13}\n",
@@ -140,11 +151,20 @@ fn table(s: &dwell_studies::simulate::Summary) -> String {
             z.min_c,
             z.mean_c,
             z.max_c,
-            z.comfort.as_ref().map(|c| c.hours_below.to_string()).unwrap_or_else(|| "-".into())
+            z.comfort
+                .as_ref()
+                .map(|c| c.hours_below.to_string())
+                .unwrap_or_else(|| "-".into())
         ));
     }
-    o.push_str(&format!("{:<16}{:>12.1}{:>11.0}\n", "whole house", s.total_heating_kwh, s.total_peak_heating_w));
-    o.push_str(&format!("purchased energy {:.1} kWh", s.total_purchased_kwh));
+    o.push_str(&format!(
+        "{:<16}{:>12.1}{:>11.0}\n",
+        "whole house", s.total_heating_kwh, s.total_peak_heating_w
+    ));
+    o.push_str(&format!(
+        "purchased energy {:.1} kWh",
+        s.total_purchased_kwh
+    ));
     if let Some(c) = s.total_cost {
         o.push_str(&format!(", cost {c:.2}"));
     }

@@ -105,7 +105,9 @@ fn table(s: &Sizing) -> String {
             z.steady_w,
             opt(z.dynamic_w, 0),
             opt(z.hold_w, 0),
-            z.reheat_share.map(|r| format!("{:.0} %", r * 100.0)).unwrap_or_else(|| "-".into()),
+            z.reheat_share
+                .map(|r| format!("{:.0} %", r * 100.0))
+                .unwrap_or_else(|| "-".into()),
             z.recommended_w,
             opt(z.installed_w, 0),
             opt(z.oversizing_ratio, 2)
@@ -122,9 +124,15 @@ fn table(s: &Sizing) -> String {
     }
     o.push('\n');
     if let Some(l) = &s.load_duration {
-        o.push_str(&format!("load duration ({} h, {:.0} kWh):", l.hours, l.annual_kwh));
+        o.push_str(&format!(
+            "load duration ({} h, {:.0} kWh):",
+            l.hours, l.annual_kwh
+        ));
         for p in &l.points {
-            o.push_str(&format!(" {} h ≥ {:.0} W;", p.hours_at_or_above_h, p.load_w));
+            o.push_str(&format!(
+                " {} h ≥ {:.0} W;",
+                p.hours_at_or_above_h, p.load_w
+            ));
         }
         o.push('\n');
     }

@@ -294,7 +294,10 @@ fn run_sun(a: SunArgs) -> anyhow::Result<()> {
         .elevation
         .or(from_file.map(|s| s.elevation_m))
         .unwrap_or(0.0);
-    let albedo = a.albedo.or(from_file.map(|s| s.albedo)).unwrap_or(DEFAULT_ALBEDO);
+    let albedo = a
+        .albedo
+        .or(from_file.map(|s| s.albedo))
+        .unwrap_or(DEFAULT_ALBEDO);
     let site = Site::new(lat, lon, elevation, albedo).map_err(bad_input)?;
     if !a.tilt.is_finite() || !(0.0..=180.0).contains(&a.tilt) {
         return Err(bad_input(format!(
