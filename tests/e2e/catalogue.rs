@@ -18,7 +18,14 @@ fn cases(kind: &str, ext: &str) -> Vec<(PathBuf, Vec<String>)> {
         .map(|p| {
             let expect = std::fs::read_to_string(p.with_extension("expect"))
                 .unwrap_or_else(|_| panic!("{} has no .expect file", p.display()));
-            (p, expect.lines().filter(|l| !l.is_empty()).map(String::from).collect())
+            (
+                p,
+                expect
+                    .lines()
+                    .filter(|l| !l.is_empty())
+                    .map(String::from)
+                    .collect(),
+            )
         })
         .collect();
     out.sort();
@@ -29,10 +36,18 @@ fn refused(file: &Path, expect: &[String], args: &[&str], out: Option<&Path>) {
     let o = dwell(args);
     let err = stderr(&o);
     let name = file.file_name().unwrap().to_string_lossy();
-    assert_eq!(o.status.code(), Some(2), "{name}: exit code {:?}, stderr: {err}", o.status.code());
+    assert_eq!(
+        o.status.code(),
+        Some(2),
+        "{name}: exit code {:?}, stderr: {err}",
+        o.status.code()
+    );
     assert!(err.starts_with("error: "), "{name}: {err}");
     assert!(!err.contains("panicked"), "{name}: {err}");
-    assert!(err.contains(&*name), "{name}: the error does not name the file: {err}");
+    assert!(
+        err.contains(&*name),
+        "{name}: the error does not name the file: {err}"
+    );
     for e in expect {
         assert!(err.contains(e.as_str()), "{name}: expected `{e}` in: {err}");
     }
@@ -43,10 +58,15 @@ fn refused(file: &Path, expect: &[String], args: &[&str], out: Option<&Path>) {
 
 #[test]
 fn the_catalogue_holds_at_least_forty_cases() {
-    let n: usize = [("models", "json"), ("weather", "csv"), ("variants", "json"), ("measured", "csv")]
-        .iter()
-        .map(|(k, e)| cases(k, e).len())
-        .sum();
+    let n: usize = [
+        ("models", "json"),
+        ("weather", "csv"),
+        ("variants", "json"),
+        ("measured", "csv"),
+    ]
+    .iter()
+    .map(|(k, e)| cases(k, e).len())
+    .sum();
     assert!(n >= 40, "{n} cases");
 }
 
@@ -60,7 +80,12 @@ fn bad_models_are_refused() {
 #[test]
 fn bad_weather_files_are_refused() {
     for (f, expect) in cases("weather", "csv") {
-        refused(&f, &expect, &["weather", "summary", f.to_str().unwrap()], None);
+        refused(
+            &f,
+            &expect,
+            &["weather", "summary", f.to_str().unwrap()],
+            None,
+        );
     }
 }
 
@@ -69,7 +94,14 @@ fn bad_weather_files_stop_a_simulation_before_it_writes() {
     let tmp = tempfile::tempdir().unwrap();
     for (f, expect) in cases("weather", "csv") {
         let out = tmp.path().join(f.file_stem().unwrap());
-        let args = ["simulate", "zones-examples/fernhollow-cabin.json", "--weather", f.to_str().unwrap(), "--out", out.to_str().unwrap()];
+        let args = [
+            "simulate",
+            "zones-examples/fernhollow-cabin.json",
+            "--weather",
+            f.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ];
         refused(&f, &expect, &args, Some(&out));
     }
 }
@@ -81,7 +113,18 @@ fn bad_variants_are_refused_naming_the_variant() {
         let out = tmp.path().join(f.file_stem().unwrap());
         let v = format!("trial={}", f.display());
         expect.push("trial".into());
-        let args = ["compare", "zones-examples/fernhollow-cabin.json", "--variant", &v, "--from", "2025-01-06", "--to", "2025-01-07", "--out", out.to_str().unwrap()];
+        let args = [
+            "compare",
+            "zones-examples/fernhollow-cabin.json",
+            "--variant",
+            &v,
+            "--from",
+            "2025-01-06",
+            "--to",
+            "2025-01-07",
+            "--out",
+            out.to_str().unwrap(),
+        ];
         refused(&f, &expect, &args, Some(&out));
     }
 }
@@ -91,7 +134,17 @@ fn bad_measured_data_are_refused() {
     let tmp = tempfile::tempdir().unwrap();
     for (f, expect) in cases("measured", "csv") {
         let out = tmp.path().join(f.file_stem().unwrap());
-        refused(&f, &expect, &["calibrate", f.to_str().unwrap(), "--out", out.to_str().unwrap()], Some(&out));
+        refused(
+            &f,
+            &expect,
+            &[
+                "calibrate",
+                f.to_str().unwrap(),
+                "--out",
+                out.to_str().unwrap(),
+            ],
+            Some(&out),
+        );
     }
 }
 
@@ -102,7 +155,16 @@ fn a_run_that_fails_midway_leaves_no_half_written_file() {
     let tmp = tempfile::tempdir().unwrap();
     let out = tmp.path().join("run");
     std::fs::create_dir_all(out.join("summary.json")).unwrap();
-    let o = dwell(&["simulate", "zones-examples/fernhollow-cabin.json", "--from", "2025-01-06", "--to", "2025-01-07", "--out", out.to_str().unwrap()]);
+    let o = dwell(&[
+        "simulate",
+        "zones-examples/fernhollow-cabin.json",
+        "--from",
+        "2025-01-06",
+        "--to",
+        "2025-01-07",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
     assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
     assert!(stderr(&o).contains("summary.json"), "{}", stderr(&o));
     for e in std::fs::read_dir(&out).unwrap() {

@@ -1,11 +1,11 @@
 //! End-to-end tests of the `dwell` binary, compiled as one test binary.
 
-mod charts;
+mod calibrate;
 mod catalogue;
+mod charts;
 mod model;
 mod simulate;
+mod studies;
+mod sweep;
 mod util;
 mod weather;
-mod studies;
-mod calibrate;
-mod sweep;

@@ -15,12 +15,18 @@ fn check_runs_on_every_example() {
         let o = dwell(&["check", ex]);
         assert!(o.status.success(), "{ex}: {}", stderr(&o));
         let out = stdout(&o);
-        assert!(out.contains("model is valid") && out.contains("time constants"), "{out}");
+        assert!(
+            out.contains("model is valid") && out.contains("time constants"),
+            "{out}"
+        );
         let o = dwell(&["check", ex, "--json"]);
         assert!(o.status.success());
         let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
         assert!(v["total"]["total_w_k"].as_f64().unwrap() > 0.0);
-        assert!(v["longest_time_constant_h"].as_f64().unwrap() > v["shortest_time_constant_h"].as_f64().unwrap());
+        assert!(
+            v["longest_time_constant_h"].as_f64().unwrap()
+                > v["shortest_time_constant_h"].as_f64().unwrap()
+        );
     }
 }
 
@@ -40,17 +46,28 @@ fn network_json_is_a_consistent_state_space() {
         assert_eq!(v["inputs"][0], "outdoor_air_c");
         assert_eq!(v["input_hold"][0], "linear");
         // A = −C⁻¹K: C·A is symmetric with non-positive row sums (K row sums = boundary G ≥ 0)
-        let c: Vec<f64> = v["capacitance_j_k"].as_array().unwrap().iter().map(|x| x.as_f64().unwrap()).collect();
+        let c: Vec<f64> = v["capacitance_j_k"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|x| x.as_f64().unwrap())
+            .collect();
         let a = |i: usize, j: usize| v["a"][i][j].as_f64().unwrap();
         for i in 0..n {
             let mut row = 0.0;
             for j in 0..n {
                 let kij = -c[i] * a(i, j);
                 let kji = -c[j] * a(j, i);
-                assert!((kij - kji).abs() <= 1e-9 * kij.abs().max(1e-6), "{ex}: K not symmetric at {i},{j}");
+                assert!(
+                    (kij - kji).abs() <= 1e-9 * kij.abs().max(1e-6),
+                    "{ex}: K not symmetric at {i},{j}"
+                );
                 row += kij;
             }
-            assert!(row >= -1e-9 * c[i] * a(i, i).abs(), "{ex}: row sum of K negative at {i}");
+            assert!(
+                row >= -1e-9 * c[i] * a(i, i).abs(),
+                "{ex}: row sum of K negative at {i}"
+            );
         }
         for (zone, idx) in v["zone_states"].as_object().unwrap() {
             let i = idx.as_u64().unwrap() as usize;
@@ -65,7 +82,17 @@ fn schema_is_json_and_closed() {
     assert!(o.status.success());
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(v["additionalProperties"], false);
-    for key in ["materials", "constructions", "zones", "opaque", "openings", "airflows", "heaters", "schedules", "network"] {
+    for key in [
+        "materials",
+        "constructions",
+        "zones",
+        "opaque",
+        "openings",
+        "airflows",
+        "heaters",
+        "schedules",
+        "network",
+    ] {
         assert!(v["properties"][key].is_object(), "schema lacks {key}");
     }
 }
@@ -109,17 +136,36 @@ fn the_good_model_passes() {
 
 #[test]
 fn unknown_field_is_named_with_a_suggestion() {
-    bad(&edit("\"thickness_m\"", "\"thicknes_m\""), &["$.constructions[0].layers[0].thicknes_m", "did you mean `thickness_m`?"]);
+    bad(
+        &edit("\"thickness_m\"", "\"thicknes_m\""),
+        &[
+            "$.constructions[0].layers[0].thicknes_m",
+            "did you mean `thickness_m`?",
+        ],
+    );
 }
 
 #[test]
 fn unknown_id_is_named_with_a_suggestion() {
-    bad(&edit("\"construction\": \"solid\"", "\"construction\": \"sold\""), &["$.opaque[0].construction", "unknown construction `sold`", "did you mean `solid`?"]);
+    bad(
+        &edit("\"construction\": \"solid\"", "\"construction\": \"sold\""),
+        &[
+            "$.opaque[0].construction",
+            "unknown construction `sold`",
+            "did you mean `solid`?",
+        ],
+    );
 }
 
 #[test]
 fn duplicate_id_is_named() {
-    bad(&edit("\"id\": \"win\"", "\"id\": \"walls\""), &["$.openings[0].id", "duplicate id `walls` (first used at $.opaque[0])"]);
+    bad(
+        &edit("\"id\": \"win\"", "\"id\": \"walls\""),
+        &[
+            "$.openings[0].id",
+            "duplicate id `walls` (first used at $.opaque[0])",
+        ],
+    );
     bad(
         &edit("{\"id\": \"room\", \"floor_area_m2\": 20, \"volume_m3\": 50}", "{\"id\": \"room\", \"floor_area_m2\": 20, \"volume_m3\": 50}, {\"id\": \"room\", \"floor_area_m2\": 2, \"volume_m3\": 5}"),
         &["$.zones[1].id", "duplicate id `room`"],
@@ -128,29 +174,56 @@ fn duplicate_id_is_named() {
 
 #[test]
 fn missing_required_value_is_named() {
-    bad(&edit("\"volume_m3\": 50", "\"volume\": 50"), &["$.zones[0]", "volume"]);
-    bad(&edit(", \"u_value_w_m2k\": 1.4", ""), &["$.openings[0]", "missing field `u_value_w_m2k`"]);
+    bad(
+        &edit("\"volume_m3\": 50", "\"volume\": 50"),
+        &["$.zones[0]", "volume"],
+    );
+    bad(
+        &edit(", \"u_value_w_m2k\": 1.4", ""),
+        &["$.openings[0]", "missing field `u_value_w_m2k`"],
+    );
 }
 
 #[test]
 fn wrong_type_is_named() {
-    bad(&edit("\"area_m2\": 40", "\"area_m2\": \"40\""), &["$.opaque[0].area_m2", "invalid type"]);
+    bad(
+        &edit("\"area_m2\": 40", "\"area_m2\": \"40\""),
+        &["$.opaque[0].area_m2", "invalid type"],
+    );
 }
 
 #[test]
 fn zero_or_negative_thickness_is_refused() {
-    bad(&edit("\"thickness_m\": 0.22", "\"thickness_m\": 0"), &["$.constructions[0].layers[0].thickness_m", "must be positive"]);
-    bad(&edit("\"thickness_m\": 0.22", "\"thickness_m\": -0.1"), &["thickness is -0.1"]);
+    bad(
+        &edit("\"thickness_m\": 0.22", "\"thickness_m\": 0"),
+        &[
+            "$.constructions[0].layers[0].thickness_m",
+            "must be positive",
+        ],
+    );
+    bad(
+        &edit("\"thickness_m\": 0.22", "\"thickness_m\": -0.1"),
+        &["thickness is -0.1"],
+    );
 }
 
 #[test]
 fn non_positive_conductivity_is_refused() {
-    bad(&edit("\"conductivity_w_mk\": 0.77", "\"conductivity_w_mk\": -0.77"), &["$.materials[0].conductivity_w_mk", "must be positive"]);
+    bad(
+        &edit(
+            "\"conductivity_w_mk\": 0.77",
+            "\"conductivity_w_mk\": -0.77",
+        ),
+        &["$.materials[0].conductivity_w_mk", "must be positive"],
+    );
 }
 
 #[test]
 fn zero_area_is_refused() {
-    bad(&edit("\"area_m2\": 40", "\"area_m2\": 0"), &["$.opaque[0].area_m2", "area is 0"]);
+    bad(
+        &edit("\"area_m2\": 40", "\"area_m2\": 0"),
+        &["$.opaque[0].area_m2", "area is 0"],
+    );
 }
 
 #[test]
@@ -163,7 +236,10 @@ fn negative_capacitance_is_refused() {
 
 #[test]
 fn g_value_outside_unit_interval_is_refused() {
-    bad(&edit("\"g_value\": 0.6", "\"g_value\": 1.6"), &["$.openings[0].g_value", "between 0 and 1"]);
+    bad(
+        &edit("\"g_value\": 0.6", "\"g_value\": 1.6"),
+        &["$.openings[0].g_value", "between 0 and 1"],
+    );
 }
 
 #[test]
@@ -186,13 +262,23 @@ fn empty_model_is_refused() {
 
 #[test]
 fn syntax_error_gives_line_and_column() {
-    bad("{\n  \"zones\": [\n    {\"id\": \"a\",,}\n  ]\n}", &["model.json:3:16", "not valid JSON"]);
+    bad(
+        "{\n  \"zones\": [\n    {\"id\": \"a\",,}\n  ]\n}",
+        &["model.json:3:16", "not valid JSON"],
+    );
 }
 
 #[test]
 fn every_problem_is_reported_at_once() {
-    let text = edit("\"g_value\": 0.6", "\"g_value\": 1.6").replacen("\"area_m2\": 40", "\"area_m2\": -1", 1);
-    bad(&text, &["2 problems", "$.opaque[0].area_m2", "$.openings[0].g_value"]);
+    let text = edit("\"g_value\": 0.6", "\"g_value\": 1.6").replacen(
+        "\"area_m2\": 40",
+        "\"area_m2\": -1",
+        1,
+    );
+    bad(
+        &text,
+        &["2 problems", "$.opaque[0].area_m2", "$.openings[0].g_value"],
+    );
 }
 
 #[test]

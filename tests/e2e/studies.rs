@@ -21,12 +21,15 @@ fn size_writes_sizing_json_with_units_and_the_caution() {
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(stdout(&o).contains("licensed professional"));
-    let j: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("sizing.json")).unwrap()).unwrap();
+    let j: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("sizing.json")).unwrap()).unwrap();
     let z = &j["zones"][0];
     for k in ["steady_w", "dynamic_w", "recommended_w", "breakdown"] {
         assert!(!z[k].is_null(), "{k}");
     }
-    assert!(j["total"]["recommended_w"].as_f64().unwrap() >= j["total"]["steady_w"].as_f64().unwrap());
+    assert!(
+        j["total"]["recommended_w"].as_f64().unwrap() >= j["total"]["steady_w"].as_f64().unwrap()
+    );
     assert!(std::fs::read_to_string(out.join("sizing.csv"))
         .unwrap()
         .starts_with("zone,heated,steady_w"));
@@ -47,7 +50,8 @@ fn setback_and_outage_run_on_the_examples() {
         out.to_str().unwrap(),
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
-    let j: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("setback.json")).unwrap()).unwrap();
+    let j: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("setback.json")).unwrap()).unwrap();
     assert_eq!(j["nights"].as_array().unwrap().len(), 2);
     assert!(j["total_saving_kwh"].as_f64().unwrap() > 0.0);
     let out = d.path().join("o");
@@ -94,7 +98,8 @@ fn compare_runs_variants_and_a_grid_base_first() {
     let rows: Vec<&str> = csv.lines().collect();
     assert_eq!(rows.len(), 1 + 4);
     assert!(rows[1].starts_with("base,"));
-    let j: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("compare.json")).unwrap()).unwrap();
+    let j: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("compare.json")).unwrap()).unwrap();
     let heat: Vec<f64> = j["rows"].as_array().unwrap()[1..]
         .iter()
         .map(|r| r["heating_kwh"].as_f64().unwrap())
@@ -115,9 +120,17 @@ fn bad_inputs_exit_2_and_name_the_place() {
         out.to_str().unwrap(),
     ]);
     assert_eq!(o.status.code(), Some(2));
-    assert!(stderr(&o).contains("variant a: cannot read no/such.json"), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("variant a: cannot read no/such.json"),
+        "{}",
+        stderr(&o)
+    );
     let bad = d.path().join("bad.json");
-    std::fs::write(&bad, r#"{"zones": [{"id": "downstairs", "floor_area_m2": -5, "volume_m3": 10}]}"#).unwrap();
+    std::fs::write(
+        &bad,
+        r#"{"zones": [{"id": "downstairs", "floor_area_m2": -5, "volume_m3": 10}]}"#,
+    )
+    .unwrap();
     let o = dwell(&[
         "compare",
         "zones-examples/brickworth-house.json",
@@ -159,6 +172,10 @@ fn bad_inputs_exit_2_and_name_the_place() {
         out.to_str().unwrap(),
     ]);
     assert_eq!(o.status.code(), Some(2));
-    assert!(stderr(&o).contains("--recovery 0 h is outside"), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("--recovery 0 h is outside"),
+        "{}",
+        stderr(&o)
+    );
     assert!(!out.exists(), "no output folder for failed runs");
 }
