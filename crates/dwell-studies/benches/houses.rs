@@ -1,7 +1,10 @@
 //! Whole-house timings: for each shipped example in `zones-examples/`, parsing and compiling
 //! the model (network build with Kron reduction), discretising it (modal route, 1 h), and one
 //! year hourly `simulate` with the default weather and the default (thermostat) control,
-//! warm-up included; then a synthetic building of 200 zones and about 2,000 nodes (INVENTED:
+//! warm-up included; stepping alone (`step_year_block`: one year hourly through
+//! `Stepper::run_known`, the inputs computed beforehand from the default weather and the
+//! model's schedules, every zone's air temperature read at step ends and as step means, as
+//! in `examples/house_steps.rs`); then a synthetic building of 200 zones and about 2,000 nodes (INVENTED:
 //! a row of similar rooms, see `synthetic/mod.rs`): each stage (build, discretise, stepper
 //! construction, one year hourly with every zone's air temperature read each hour), the
 //! whole (build + discretise + year), and the same with the modes faster than 360 s dropped
@@ -17,8 +20,9 @@ use std::path::PathBuf;
 use criterion::{black_box, criterion_group, criterion_main, BenchmarkId, Criterion};
 use dwell_model::{compile, read_model};
 use dwell_solver::{Discretization, Readout, Route, Stepper, TruncatedModal, Truncation};
+use dwell_studies::forcing::Forcing;
 use dwell_studies::{simulate, SimOptions};
-use dwell_weather::default_weather;
+use dwell_weather::{default_weather, SkyModel};
 
 mod synthetic;
 use synthetic::{
@@ -58,6 +62,28 @@ fn houses(c: &mut Criterion) {
         group.bench_function(BenchmarkId::new("discretise", &id), |b| {
             b.iter(|| {
                 Discretization::new(black_box(&house.network.system), 3600.0, Route::Modal).unwrap()
+            })
+        });
+        // Stepping alone: inputs beforehand, one block run over the year.
+        let net = &house.network;
+        let m = net.inputs.len();
+        let forcing = Forcing::new(&model, &house, &weather, 3600.0, SkyModel::HayDavies);
+        let hours = (forcing.hours() - 1).min(8760);
+        let mut u = vec![0.0; (hours + 1) * m];
+        for (k, uk) in u.chunks_exact_mut(m).enumerate() {
+            forcing.fill(0, k, uk);
+        }
+        let air: Vec<usize> = house.zones.iter().map(|z| z.air_state).collect();
+        let rows = Readout::nodes(&air, n, m);
+        let disc = Discretization::new(&net.system, 3600.0, Route::Modal).unwrap();
+        let mut st = Stepper::new(&disc, &rows, &rows).unwrap();
+        let (mut yi, mut ym) = (vec![0.0; hours * air.len()], vec![0.0; hours * air.len()]);
+        let start = vec![18.0; n];
+        group.bench_function(BenchmarkId::new("step_year_block", &id), |b| {
+            b.iter(|| {
+                st.set_state(&start);
+                st.run_known(black_box(&u), &mut yi, &mut ym);
+                black_box(ym[0])
             })
         });
         let opts = SimOptions::default();
