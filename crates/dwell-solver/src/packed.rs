@@ -168,6 +168,19 @@ pub(crate) struct Panels {
 #[repr(C, align(64))]
 pub(crate) struct Line(pub(crate) [f64; PANEL]);
 
+/// A run of lines as the `f64` it holds (`8 · lines.len()` values).
+pub(crate) fn flat(lines: &[Line]) -> &[f64] {
+    // SAFETY: `Line` is `repr(C)` around `[f64; PANEL]` with no padding (size 64, alignment
+    // 64), so the lines are `len · PANEL` contiguous `f64`.
+    unsafe { std::slice::from_raw_parts(lines.as_ptr().cast::<f64>(), lines.len() * PANEL) }
+}
+
+/// [`flat`], writable.
+pub(crate) fn flat_mut(lines: &mut [Line]) -> &mut [f64] {
+    // SAFETY: as in `flat`, and the borrow is unique.
+    unsafe { std::slice::from_raw_parts_mut(lines.as_mut_ptr().cast::<f64>(), lines.len() * PANEL) }
+}
+
 /// How `y = A x` starts.
 #[derive(Clone, Copy)]
 pub(crate) enum Init<'a> {

@@ -40,21 +40,11 @@ impl Work {
     }
 
     fn flat(&self) -> &[f64] {
-        // SAFETY: `Line` is `repr(C)` around `[f64; PANEL]` with no padding (its size is
-        // 64 bytes, its alignment 64), so the buffer is `len · PANEL` contiguous `f64`.
-        unsafe {
-            std::slice::from_raw_parts(self.buf.as_ptr().cast::<f64>(), self.buf.len() * PANEL)
-        }
+        crate::packed::flat(&self.buf)
     }
 
     fn flat_mut(&mut self) -> &mut [f64] {
-        // SAFETY: as in `flat`, and the borrow is unique.
-        unsafe {
-            std::slice::from_raw_parts_mut(
-                self.buf.as_mut_ptr().cast::<f64>(),
-                self.buf.len() * PANEL,
-            )
-        }
+        crate::packed::flat_mut(&mut self.buf)
     }
 
     /// `z`.

@@ -19,6 +19,12 @@
 //! order; tests `block_march_equals_step_by_step_in_every_form` and
 //! `run_known_equals_step_by_step`).
 //!
+//! Under capacity-limited thermostats (`Stepper::run_thermostat`) the input response is a
+//! product as above, but the recursion runs step by step with the thermostats: the controlled
+//! outputs with the heaters off (their input part a product over the block too), the box
+//! problem, and `ξ_{k+1} = F ξ_k + V[:, k] + Σ_c f_c H e_c`; then the readouts of the block
+//! are one product plus the heaters' share.
+//!
 //! Memory for the block (states, readouts) is allocated once per call, before the loop; the
 //! loop itself allocates nothing.
 
@@ -26,9 +32,9 @@ use super::Stepper;
 use crate::control::Control;
 use crate::lcp;
 use crate::packed::Kernel;
+use crate::packed::{flat, flat_mut, Lane8, Line, Plain, Segment, PANEL};
 #[cfg(target_arch = "x86_64")]
 use crate::packed::{Avx2, Avx512};
-use crate::packed::{Lane8, Line, Plain, Segment, PANEL};
 
 /// Steps per block: the block's states and the inputs read (about `2 · ld · B` values) should
 /// stay in the level-1 data cache (32 KiB on the development machine) while they are used.
@@ -41,16 +47,6 @@ fn block_len(ld: usize, steps: usize) -> usize {
 /// A vector of `len` zeros on whole cache lines (so every panel load is aligned).
 fn lines(len: usize) -> Vec<Line> {
     vec![Line([0.0; PANEL]); len.div_ceil(PANEL)]
-}
-
-fn flat(v: &[Line]) -> &[f64] {
-    // SAFETY: `Line` is `repr(C)` around `[f64; PANEL]`, size 64, no padding.
-    unsafe { std::slice::from_raw_parts(v.as_ptr().cast::<f64>(), v.len() * PANEL) }
-}
-
-fn flat_mut(v: &mut [Line]) -> &mut [f64] {
-    // SAFETY: as in `flat`, and the borrow is unique.
-    unsafe { std::slice::from_raw_parts_mut(v.as_mut_ptr().cast::<f64>(), v.len() * PANEL) }
 }
 
 /// Writes row `k` of a table with rows of `width` values: `src[..width]`. Where eight
