@@ -846,6 +846,35 @@ mod x86 {
     use super::{Lane8, PANEL};
     use std::arch::x86_64::*;
 
+    /// The half-width (4-lane, 256-bit) methods of [`Lane8`], the same for both AVX forms
+    /// but for the features their functions are compiled with.
+    macro_rules! half_lanes {
+        ($features:literal) => {
+            type Half = __m256d;
+            #[inline]
+            #[target_feature(enable = $features)]
+            unsafe fn half_zero() -> __m256d {
+                _mm256_setzero_pd()
+            }
+            #[inline]
+            #[target_feature(enable = $features)]
+            unsafe fn half_load(p: &[f64; PANEL]) -> __m256d {
+                // SAFETY: `p` holds 8 values; unaligned load of the first 4.
+                unsafe { _mm256_loadu_pd(p.as_ptr()) }
+            }
+            #[inline]
+            #[target_feature(enable = $features)]
+            unsafe fn half_splat(x: f64) -> __m256d {
+                _mm256_set1_pd(x)
+            }
+            #[inline]
+            #[target_feature(enable = $features)]
+            unsafe fn half_fmadd(a: __m256d, b: __m256d, c: __m256d) -> __m256d {
+                _mm256_fmadd_pd(a, b, c)
+            }
+        };
+    }
+
     /// AVX2 + FMA: two 256-bit registers.
     #[derive(Clone, Copy)]
     pub(crate) struct Avx2([__m256d; 2]);
@@ -904,28 +933,7 @@ mod x86 {
             let s = _mm_add_pd(lo, hi);
             _mm_cvtsd_f64(_mm_add_sd(s, _mm_unpackhi_pd(s, s)))
         }
-        type Half = __m256d;
-        #[inline]
-        #[target_feature(enable = "avx2,fma")]
-        unsafe fn half_zero() -> __m256d {
-            _mm256_setzero_pd()
-        }
-        #[inline]
-        #[target_feature(enable = "avx2,fma")]
-        unsafe fn half_load(p: &[f64; PANEL]) -> __m256d {
-            // SAFETY: `p` holds 8 values; unaligned load of the first 4.
-            unsafe { _mm256_loadu_pd(p.as_ptr()) }
-        }
-        #[inline]
-        #[target_feature(enable = "avx2,fma")]
-        unsafe fn half_splat(x: f64) -> __m256d {
-            _mm256_set1_pd(x)
-        }
-        #[inline]
-        #[target_feature(enable = "avx2,fma")]
-        unsafe fn half_fmadd(a: __m256d, b: __m256d, c: __m256d) -> __m256d {
-            _mm256_fmadd_pd(a, b, c)
-        }
+        half_lanes!("avx2,fma");
         #[inline]
         #[target_feature(enable = "avx2,fma")]
         unsafe fn widen(h: __m256d) -> Self {
@@ -1007,28 +1015,7 @@ mod x86 {
             let s = _mm_add_pd(lo, hi);
             _mm_cvtsd_f64(_mm_add_sd(s, _mm_unpackhi_pd(s, s)))
         }
-        type Half = __m256d;
-        #[inline]
-        #[target_feature(enable = "avx512f,avx2,fma")]
-        unsafe fn half_zero() -> __m256d {
-            _mm256_setzero_pd()
-        }
-        #[inline]
-        #[target_feature(enable = "avx512f,avx2,fma")]
-        unsafe fn half_load(p: &[f64; PANEL]) -> __m256d {
-            // SAFETY: `p` holds 8 values; unaligned load of the first 4.
-            unsafe { _mm256_loadu_pd(p.as_ptr()) }
-        }
-        #[inline]
-        #[target_feature(enable = "avx512f,avx2,fma")]
-        unsafe fn half_splat(x: f64) -> __m256d {
-            _mm256_set1_pd(x)
-        }
-        #[inline]
-        #[target_feature(enable = "avx512f,avx2,fma")]
-        unsafe fn half_fmadd(a: __m256d, b: __m256d, c: __m256d) -> __m256d {
-            _mm256_fmadd_pd(a, b, c)
-        }
+        half_lanes!("avx512f,avx2,fma");
         #[inline]
         #[target_feature(enable = "avx512f,avx2,fma")]
         unsafe fn widen(h: __m256d) -> Self {
