@@ -58,6 +58,11 @@ enum Side {
 }
 
 impl LcpScratch {
+    /// `M⁻¹` (row-major), if kept.
+    pub(crate) fn inverse(&self) -> Option<&[f64]> {
+        self.inverse.as_deref()
+    }
+
     pub(crate) fn new(q: usize) -> Self {
         LcpScratch {
             mat: vec![0.0; q * q],

@@ -248,7 +248,11 @@ impl Stepper {
                 Some((ctl, th)) => {
                     self.advance.gemm_in::<V, NC>(&[u_k], b, v, s.npad);
                     ctl.row_inputs.gemm_in::<V, NC>(&[u_k, u_t], b, cb, ld_c);
-                    thermostat_steps::<V>(s.npad, decay, z, v, cb, ld_c, k0, b, ctl, th);
+                    if ctl.fraction.len() == 1 {
+                        single_thermostat_steps::<V>(s.npad, decay, z, v, cb, ld_c, k0, b, ctl, th);
+                    } else {
+                        thermostat_steps::<V>(s.npad, decay, z, v, cb, ld_c, k0, b, ctl, th);
+                    }
                 }
             }
             let segs = [
@@ -425,6 +429,119 @@ unsafe fn thermostat_steps<V: Lane8>(
             }
         }
     }
+}
+
+/// [`thermostat_steps`] for one thermostat (`q = 1`, the usual house), with the same
+/// arithmetic in the same order and no loops over channels: the box problem is then
+/// `f = M⁻¹ r` when that lies in `[0, 1]` (`lcp::shortcut`'s two cases, written out), and
+/// `lcp::solve` otherwise.
+///
+/// # Safety
+/// As [`thermostat_steps`].
+#[allow(clippy::too_many_arguments)]
+#[inline(always)]
+unsafe fn single_thermostat_steps<V: Lane8>(
+    npad: usize,
+    decay: &[f64],
+    z: &mut [f64],
+    v: &[f64],
+    cb: &[f64],
+    ld_c: usize,
+    k0: usize,
+    b: usize,
+    ctl: &mut Control,
+    th: &mut Thermostat,
+) {
+    let np = npad / PANEL;
+    assert!(
+        ctl.fraction.len() == 1
+            && z.len() >= (b + 1) * npad
+            && v.len() >= b * npad
+            && cb.len() >= b * ld_c
+            && ctl.row_state.len() >= np
+            && ctl.gain_lines.len() >= np
+            && decay.len() >= npad
+            && th.fractions.len() >= k0 + b
+            && th.setpoints.len() >= k0 + b,
+        "thermostat block shapes"
+    );
+    let line = |p: *const f64| p.cast::<[f64; PANEL]>();
+    let enabled = th.enabled[0];
+    let inverse = ctl.scratch.inverse().map(|m| m[0]);
+    let r = flat(&ctl.row_state[..np]).as_ptr();
+    let g = flat(&ctl.gain_lines[..np]).as_ptr();
+    let mut f = ctl.fraction[0];
+    for j in 0..b {
+        let k = k0 + j;
+        // SAFETY: the panels read lie in the slices (checked above); `V`'s instructions are
+        // supported (this function's contract).
+        unsafe {
+            let xi = z.as_ptr().add(j * npad);
+            let term = |p: usize, acc: V| {
+                let off = p * PANEL;
+                V::fmadd(
+                    V::load(&*line(r.add(off))),
+                    V::load(&*line(xi.add(off))),
+                    acc,
+                )
+            };
+            let (mut even, mut odd) = (V::zero(), V::zero());
+            let mut p = 0;
+            while p + 2 <= np {
+                even = term(p, even);
+                odd = term(p + 1, odd);
+                p += 2;
+            }
+            if p < np {
+                even = term(p, even);
+            }
+            let free = V::add(even, odd).sum() + cb[j * ld_c];
+            let rhs = if enabled { th.setpoints[k] - free } else { 0.0 };
+            let shortcut = if f == 0.0 && rhs <= 0.0 {
+                Some(0.0)
+            } else {
+                match inverse {
+                    Some(inv) if enabled && (0.0..=1.0).contains(&(inv * rhs)) => Some(inv * rhs),
+                    _ => None,
+                }
+            };
+            f = match shortcut {
+                Some(value) => {
+                    ctl.sweeps = 0;
+                    value
+                }
+                None => {
+                    ctl.rhs[0] = rhs;
+                    ctl.fraction[0] = f;
+                    ctl.sweeps = lcp::solve(
+                        &ctl.influence,
+                        &ctl.rhs,
+                        th.enabled,
+                        &mut ctl.fraction,
+                        &mut ctl.scratch,
+                    );
+                    ctl.fraction[0]
+                }
+            };
+            th.fractions[k] = f;
+            let vj = v.as_ptr().add(j * npad);
+            let next = z.as_mut_ptr().add((j + 1) * npad);
+            let fv = V::splat(f);
+            for p in 0..np {
+                let off = p * PANEL;
+                let mut x = V::fmadd(
+                    V::load(&*line(decay.as_ptr().add(off))),
+                    V::load(&*line(xi.add(off))),
+                    V::load(&*line(vj.add(off))),
+                );
+                if f != 0.0 {
+                    x = V::fmadd(fv, V::load(&*line(g.add(off))), x);
+                }
+                V::store(x, &mut *next.add(off).cast::<[f64; PANEL]>());
+            }
+        }
+    }
+    ctl.fraction[0] = f;
 }
 
 /// The per-run arguments of a thermostat block run.
@@ -694,10 +811,11 @@ mod tests {
                 } else {
                     vec![Kernel::detect()]
                 };
-                for kernel in forms {
+                // Two thermostats, and one (the usual house: its own code path).
+                for (kernel, q) in forms.iter().flat_map(|&k| [(k, 2), (k, 1)]) {
                     let mut a = Stepper::new(&d, &inst, &mean)
                         .unwrap()
-                        .with_control(&channels)
+                        .with_control(&channels[..q])
                         .unwrap();
                     a.kernel = kernel;
                     a.set_state(&vec![14.0; n]);
@@ -705,38 +823,39 @@ mod tests {
                     let mut worst = 0.0_f64;
                     let mut switched = [0usize; 3];
                     for (call, steps, enabled) in
-                        [(0_u64, 200_usize, [true, true]), (1, 53, [true, false])]
+                        [(0_u64, 200_usize, [true, true]), (1, 53, [q == 2, false])]
                     {
+                        let enabled = &enabled[..q];
                         let mut u = inputs(m, steps, 40 + call, -12.0);
                         // The heater inputs carry no other heat.
                         for k in 0..=steps {
                             u[k * m + 2] = 0.0;
                             u[k * m + 3] = 0.0;
                         }
-                        let set: Vec<f64> = (0..steps * 2)
+                        let set: Vec<f64> = (0..steps * q)
                             .map(|i| {
-                                if (i / 2) % 24 < 7 {
+                                if (i / q) % 24 < 7 {
                                     16.0
                                 } else {
-                                    20.0 + (i % 2) as f64
+                                    20.0 + (i % q) as f64
                                 }
                             })
                             .collect();
-                        let mut fb = vec![0.0; steps * 2];
+                        let mut fb = vec![0.0; steps * q];
                         let (mut yi, mut ym) = (vec![0.0; steps * pi], vec![0.0; steps * pm]);
-                        b.run_thermostat(&u, &set, &enabled, &mut fb, &mut yi, &mut ym);
-                        let mut fa = [0.0; 2];
+                        b.run_thermostat(&u, &set, enabled, &mut fb, &mut yi, &mut ym);
+                        let mut fa = vec![0.0; q];
                         for k in 0..steps {
                             let mut u_k = u[k * m..(k + 1) * m].to_vec();
                             a.step_thermostat(
                                 &mut u_k,
                                 &u[(k + 1) * m..(k + 2) * m],
-                                &set[k * 2..k * 2 + 2],
-                                &enabled,
+                                &set[k * q..(k + 1) * q],
+                                enabled,
                                 &mut fa,
                             );
-                            for c in 0..2 {
-                                worst = worst.max((fa[c] - fb[k * 2 + c]).abs());
+                            for c in 0..q {
+                                worst = worst.max((fa[c] - fb[k * q + c]).abs());
                                 switched[if fa[c] == 0.0 {
                                     0
                                 } else if fa[c] == 1.0 {
