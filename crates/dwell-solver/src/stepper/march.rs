@@ -471,6 +471,26 @@ unsafe fn single_thermostat_steps<V: Lane8>(
     let r = flat(&ctl.row_state[..np]).as_ptr();
     let g = flat(&ctl.gain_lines[..np]).as_ptr();
     let mut f = ctl.fraction[0];
+    // The state stays in registers from step to step (up to 8 panels, 64 states): reading
+    // back a vector just stored costs more than the step's arithmetic on this processor.
+    // SAFETY (both arms): forwarded from this function's contract.
+    unsafe {
+        match np {
+            1 => f = single_in_registers::<V, 1>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
+            2 => f = single_in_registers::<V, 2>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
+            3 => f = single_in_registers::<V, 3>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
+            4 => f = single_in_registers::<V, 4>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
+            5 => f = single_in_registers::<V, 5>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
+            6 => f = single_in_registers::<V, 6>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
+            7 => f = single_in_registers::<V, 7>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
+            8 => f = single_in_registers::<V, 8>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
+            _ => {}
+        }
+    }
+    if np <= 8 {
+        ctl.fraction[0] = f;
+        return;
+    }
     for j in 0..b {
         let k = k0 + j;
         // SAFETY: the panels read lie in the slices (checked above); `V`'s instructions are
@@ -542,6 +562,103 @@ unsafe fn single_thermostat_steps<V: Lane8>(
         }
     }
     ctl.fraction[0] = f;
+}
+
+/// [`single_thermostat_steps`] with the `G` panels of the state held in registers (the
+/// same arithmetic in the same order); returns the last fraction.
+///
+/// # Safety
+/// As [`thermostat_steps`], with the shapes checked by the caller and `G` panels of state.
+#[allow(clippy::too_many_arguments)]
+#[inline(always)]
+unsafe fn single_in_registers<V: Lane8, const G: usize>(
+    decay: &[f64],
+    z: &mut [f64],
+    v: &[f64],
+    cb: &[f64],
+    ld_c: usize,
+    k0: usize,
+    b: usize,
+    ctl: &mut Control,
+    th: &mut Thermostat,
+    mut f: f64,
+) -> f64 {
+    let npad = G * PANEL;
+    let line = |p: *const f64| p.cast::<[f64; PANEL]>();
+    let enabled = th.enabled[0];
+    let inverse = ctl.scratch.inverse().map(|m| m[0]);
+    // SAFETY: `G` panels of each vector, inside the slices (checked by the caller); `V`'s
+    // instructions are supported (this function's contract).
+    unsafe {
+        let r0 = flat(&ctl.row_state[..G]).as_ptr();
+        let g0 = flat(&ctl.gain_lines[..G]).as_ptr();
+        let (mut r, mut g, mut d, mut x) = (
+            [V::zero(); G],
+            [V::zero(); G],
+            [V::zero(); G],
+            [V::zero(); G],
+        );
+        for p in 0..G {
+            r[p] = V::load(&*line(r0.add(p * PANEL)));
+            g[p] = V::load(&*line(g0.add(p * PANEL)));
+            d[p] = V::load(&*line(decay.as_ptr().add(p * PANEL)));
+            x[p] = V::load(&*line(z.as_ptr().add(p * PANEL)));
+        }
+        for j in 0..b {
+            let k = k0 + j;
+            let (mut even, mut odd) = (V::zero(), V::zero());
+            let mut p = 0;
+            while p + 2 <= G {
+                even = V::fmadd(r[p], x[p], even);
+                odd = V::fmadd(r[p + 1], x[p + 1], odd);
+                p += 2;
+            }
+            if p < G {
+                even = V::fmadd(r[p], x[p], even);
+            }
+            let free = V::add(even, odd).sum() + cb[j * ld_c];
+            let rhs = if enabled { th.setpoints[k] - free } else { 0.0 };
+            let shortcut = if f == 0.0 && rhs <= 0.0 {
+                Some(0.0)
+            } else {
+                match inverse {
+                    Some(inv) if enabled && (0.0..=1.0).contains(&(inv * rhs)) => Some(inv * rhs),
+                    _ => None,
+                }
+            };
+            f = match shortcut {
+                Some(value) => {
+                    ctl.sweeps = 0;
+                    value
+                }
+                None => {
+                    ctl.rhs[0] = rhs;
+                    ctl.fraction[0] = f;
+                    ctl.sweeps = lcp::solve(
+                        &ctl.influence,
+                        &ctl.rhs,
+                        th.enabled,
+                        &mut ctl.fraction,
+                        &mut ctl.scratch,
+                    );
+                    ctl.fraction[0]
+                }
+            };
+            th.fractions[k] = f;
+            let vj = v.as_ptr().add(j * npad);
+            let next = z.as_mut_ptr().add((j + 1) * npad);
+            let fv = V::splat(f);
+            for p in 0..G {
+                let mut y = V::fmadd(d[p], x[p], V::load(&*line(vj.add(p * PANEL))));
+                if f != 0.0 {
+                    y = V::fmadd(fv, g[p], y);
+                }
+                x[p] = y;
+                V::store(y, &mut *next.add(p * PANEL).cast::<[f64; PANEL]>());
+            }
+        }
+    }
+    f
 }
 
 /// The per-run arguments of a thermostat block run.
