@@ -424,6 +424,7 @@ impl Stepper {
                 cols: zl,
                 rows: None,
                 shift: 0,
+                picks: None,
             };
             self.outputs.gemm(self.kernel, &[z], b, &mut yb, ld_y);
             for j in 0..b {

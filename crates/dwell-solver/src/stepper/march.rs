@@ -132,6 +132,7 @@ impl Stepper {
         let ld_c = q.div_ceil(PANEL) * PANEL;
         let mut vb = lines(if q > 0 { npad * blk } else { 0 });
         let mut cb = lines(ld_c * blk);
+        let mut active = Vec::with_capacity(m);
         // ξ_0 relative to u_0's temperatures.
         self.align(&inputs[..m]);
         flat_mut(&mut zb)[..n].copy_from_slice(&self.work.z()[..n]);
@@ -153,6 +154,7 @@ impl Stepper {
                 v: flat_mut(&mut vb),
                 c: flat_mut(&mut cb),
                 ld_c,
+                active: &mut active,
             };
             let ctl = control.as_mut().map(|(c, t)| (&mut **c, &mut **t));
             match self.kernel {
@@ -221,16 +223,25 @@ impl Stepper {
             v,
             c: cb,
             ld_c,
+            active,
         } = buf;
         let decay = &self.decay.as_deref().expect("modal route")[..s.npad];
-        // u_k for the block's steps, read in place from the caller's table.
+        // u_k for the block's steps, read in place from the caller's table; inputs that are
+        // 0 over the whole block (heaters in a free run, gains of an empty house) skipped.
         let u = &inputs[k0 * m..];
+        active.clear();
+        for j in 0..m {
+            if (0..b).any(|r| u[r * m + j] != 0.0) {
+                active.push(j);
+            }
+        }
         let u_k = Segment {
             data: u,
             ld: m,
             cols: m,
             rows: None,
             shift: 0,
+            picks: (active.len() < m).then_some(&active[..]),
         };
         // u_{k+1,T}: the temperature entries of the next step's inputs.
         let u_t = Segment {
@@ -239,6 +250,7 @@ impl Stepper {
             cols: self.temp_inputs.len(),
             rows: Some(&self.temp_inputs),
             shift: 1,
+            picks: None,
         };
         // SAFETY (all): forwarded from this function's contract.
         unsafe {
@@ -262,6 +274,7 @@ impl Stepper {
                     cols: s.n,
                     rows: None,
                     shift: 0,
+                    picks: None,
                 },
                 u_k,
                 u_t,
@@ -302,6 +315,8 @@ struct Buffers<'a> {
     v: &'a mut [f64],
     c: &'a mut [f64],
     ld_c: usize,
+    /// The inputs not 0 somewhere in the block (capacity `m`, so filling never allocates).
+    active: &'a mut Vec<usize>,
 }
 
 /// The sequential part of a thermostat block: for each step `j`, the controlled outputs
@@ -856,7 +871,13 @@ mod tests {
                 let mut worst = 0.0_f64;
                 for (call, steps) in [(0_u64, 150_usize), (1, 37)] {
                     // The second call's temperatures are 4 K above the first's end.
-                    let u = inputs(m, steps, 100 + call, 4.0 * call as f64);
+                    let mut u = inputs(m, steps, 100 + call, 4.0 * call as f64);
+                    // The last heat input off for a while (whole blocks of it skipped).
+                    if m > 2 {
+                        for k in 20..steps.min(120) {
+                            u[k * m + m - 1] = 0.0;
+                        }
+                    }
                     let (mut yi, mut ym) = (vec![0.0; steps * 3], vec![0.0; steps * 2]);
                     b.run_known(&u, &mut yi, &mut ym);
                     for k in 0..steps {
