@@ -10,7 +10,7 @@
 
 use crate::lcp::{self, LcpScratch};
 use crate::onoff::OnOffThermostat;
-use crate::packed::{Line, Packed, Panels, PANEL};
+use crate::packed::{flat, Line, Packed, Panels, PANEL};
 use crate::{InputKind, SolverError, Stepper};
 use nalgebra::DMatrix;
 
@@ -42,8 +42,6 @@ pub(crate) struct Control {
     pub(crate) channels: Vec<ControlChannel>,
     /// `M`, `q × q`, row-major: output of channel row per unit fraction of channel column.
     pub(crate) influence: Vec<f64>,
-    /// `H e_c`, the state change per unit fraction, one row per channel.
-    state_gain: Packed,
     /// The readouts' change per unit fraction (means, then instant values), one row per
     /// channel.
     pub(crate) output_gain: Packed,
@@ -54,7 +52,8 @@ pub(crate) struct Control {
     pub(crate) sweeps: usize,
     /// For block runs (`stepper/march.rs`), one row per channel, each padded with zeros to
     /// whole panels (`⌈n/8⌉` lines): the state part of the controlled instant readout row
-    /// (over `ξ`) and the state gain `H e_c`.
+    /// (over `ξ`) and the state gain `H e_c` (the state change per unit fraction, also used
+    /// by the step-by-step thermostats).
     pub(crate) row_state: Vec<Line>,
     pub(crate) gain_lines: Vec<Line>,
     /// The input part of the controlled instant readout rows (over `[u_k; u_{k+1,T}]`),
@@ -149,7 +148,6 @@ impl Stepper {
             row_inputs: Panels::from_matrix(&row_inputs),
             channels: channels.to_vec(),
             influence,
-            state_gain: Packed::from_matrix(&gains),
             output_gain: Packed::from_matrix(&out_gains),
             rhs: vec![0.0; q],
             fraction: vec![0.0; q],
@@ -268,7 +266,11 @@ impl Stepper {
                 u_k[j] += f * p;
                 z[n + j] += f * p;
             }
-            for (s, g) in s_next.iter_mut().zip(ctl.state_gain.row(c)) {
+            let np = n.div_ceil(PANEL);
+            for (s, g) in s_next
+                .iter_mut()
+                .zip(flat(&ctl.gain_lines[c * np..(c + 1) * np]))
+            {
                 *s += f * g;
             }
             for (y, g) in out.iter_mut().zip(ctl.output_gain.row(c)) {

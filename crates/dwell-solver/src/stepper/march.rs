@@ -260,10 +260,35 @@ impl Stepper {
                 Some((ctl, th)) => {
                     self.advance.gemm_in::<V, NC>(&[u_k], b, v, s.npad);
                     ctl.row_inputs.gemm_in::<V, NC>(&[u_k, u_t], b, cb, ld_c);
-                    if ctl.fraction.len() == 1 {
-                        single_thermostat_steps::<V>(s.npad, decay, z, v, cb, ld_c, k0, b, ctl, th);
-                    } else {
-                        thermostat_steps::<V>(s.npad, decay, z, v, cb, ld_c, k0, b, ctl, th);
+                    // One thermostat (the usual house) and up to 64 states: the state in
+                    // registers, the box problem written out; otherwise the general loop.
+                    let one = ctl.fraction.len() == 1;
+                    match (one, s.npad / PANEL) {
+                        (true, 1) => {
+                            single_in_registers::<V, 1>(decay, z, v, cb, ld_c, k0, b, ctl, th)
+                        }
+                        (true, 2) => {
+                            single_in_registers::<V, 2>(decay, z, v, cb, ld_c, k0, b, ctl, th)
+                        }
+                        (true, 3) => {
+                            single_in_registers::<V, 3>(decay, z, v, cb, ld_c, k0, b, ctl, th)
+                        }
+                        (true, 4) => {
+                            single_in_registers::<V, 4>(decay, z, v, cb, ld_c, k0, b, ctl, th)
+                        }
+                        (true, 5) => {
+                            single_in_registers::<V, 5>(decay, z, v, cb, ld_c, k0, b, ctl, th)
+                        }
+                        (true, 6) => {
+                            single_in_registers::<V, 6>(decay, z, v, cb, ld_c, k0, b, ctl, th)
+                        }
+                        (true, 7) => {
+                            single_in_registers::<V, 7>(decay, z, v, cb, ld_c, k0, b, ctl, th)
+                        }
+                        (true, 8) => {
+                            single_in_registers::<V, 8>(decay, z, v, cb, ld_c, k0, b, ctl, th)
+                        }
+                        _ => thermostat_steps::<V>(s.npad, decay, z, v, cb, ld_c, k0, b, ctl, th),
                     }
                 }
             }
@@ -446,144 +471,14 @@ unsafe fn thermostat_steps<V: Lane8>(
     }
 }
 
-/// [`thermostat_steps`] for one thermostat (`q = 1`, the usual house), with the same
-/// arithmetic in the same order and no loops over channels: the box problem is then
-/// `f = M⁻¹ r` when that lies in `[0, 1]` (`lcp::shortcut`'s two cases, written out), and
-/// `lcp::solve` otherwise.
+/// [`thermostat_steps`] for one thermostat (`q = 1`, the usual house) and `G ≤ 8` panels of
+/// state: the same arithmetic in the same order, with the state carried in registers from
+/// step to step (reading back a vector just stored costs more than the step's arithmetic on
+/// the development machine) and the box problem written out — `f = M⁻¹ r` when that lies in
+/// `[0, 1]` (`lcp::shortcut`'s two cases), `lcp::solve` otherwise.
 ///
 /// # Safety
 /// As [`thermostat_steps`].
-#[allow(clippy::too_many_arguments)]
-#[inline(always)]
-unsafe fn single_thermostat_steps<V: Lane8>(
-    npad: usize,
-    decay: &[f64],
-    z: &mut [f64],
-    v: &[f64],
-    cb: &[f64],
-    ld_c: usize,
-    k0: usize,
-    b: usize,
-    ctl: &mut Control,
-    th: &mut Thermostat,
-) {
-    let np = npad / PANEL;
-    assert!(
-        ctl.fraction.len() == 1
-            && z.len() >= (b + 1) * npad
-            && v.len() >= b * npad
-            && cb.len() >= b * ld_c
-            && ctl.row_state.len() >= np
-            && ctl.gain_lines.len() >= np
-            && decay.len() >= npad
-            && th.fractions.len() >= k0 + b
-            && th.setpoints.len() >= k0 + b,
-        "thermostat block shapes"
-    );
-    let line = |p: *const f64| p.cast::<[f64; PANEL]>();
-    let enabled = th.enabled[0];
-    let inverse = ctl.scratch.inverse().map(|m| m[0]);
-    let r = flat(&ctl.row_state[..np]).as_ptr();
-    let g = flat(&ctl.gain_lines[..np]).as_ptr();
-    let mut f = ctl.fraction[0];
-    // The state stays in registers from step to step (up to 8 panels, 64 states): reading
-    // back a vector just stored costs more than the step's arithmetic on this processor.
-    // SAFETY (both arms): forwarded from this function's contract.
-    unsafe {
-        match np {
-            1 => f = single_in_registers::<V, 1>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
-            2 => f = single_in_registers::<V, 2>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
-            3 => f = single_in_registers::<V, 3>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
-            4 => f = single_in_registers::<V, 4>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
-            5 => f = single_in_registers::<V, 5>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
-            6 => f = single_in_registers::<V, 6>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
-            7 => f = single_in_registers::<V, 7>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
-            8 => f = single_in_registers::<V, 8>(decay, z, v, cb, ld_c, k0, b, ctl, th, f),
-            _ => {}
-        }
-    }
-    if np <= 8 {
-        ctl.fraction[0] = f;
-        return;
-    }
-    for j in 0..b {
-        let k = k0 + j;
-        // SAFETY: the panels read lie in the slices (checked above); `V`'s instructions are
-        // supported (this function's contract).
-        unsafe {
-            let xi = z.as_ptr().add(j * npad);
-            let term = |p: usize, acc: V| {
-                let off = p * PANEL;
-                V::fmadd(
-                    V::load(&*line(r.add(off))),
-                    V::load(&*line(xi.add(off))),
-                    acc,
-                )
-            };
-            let (mut even, mut odd) = (V::zero(), V::zero());
-            let mut p = 0;
-            while p + 2 <= np {
-                even = term(p, even);
-                odd = term(p + 1, odd);
-                p += 2;
-            }
-            if p < np {
-                even = term(p, even);
-            }
-            let free = V::add(even, odd).sum() + cb[j * ld_c];
-            let rhs = if enabled { th.setpoints[k] - free } else { 0.0 };
-            let shortcut = if f == 0.0 && rhs <= 0.0 {
-                Some(0.0)
-            } else {
-                match inverse {
-                    Some(inv) if enabled && (0.0..=1.0).contains(&(inv * rhs)) => Some(inv * rhs),
-                    _ => None,
-                }
-            };
-            f = match shortcut {
-                Some(value) => {
-                    ctl.sweeps = 0;
-                    value
-                }
-                None => {
-                    ctl.rhs[0] = rhs;
-                    ctl.fraction[0] = f;
-                    ctl.sweeps = lcp::solve(
-                        &ctl.influence,
-                        &ctl.rhs,
-                        th.enabled,
-                        &mut ctl.fraction,
-                        &mut ctl.scratch,
-                    );
-                    ctl.fraction[0]
-                }
-            };
-            th.fractions[k] = f;
-            let vj = v.as_ptr().add(j * npad);
-            let next = z.as_mut_ptr().add((j + 1) * npad);
-            let fv = V::splat(f);
-            for p in 0..np {
-                let off = p * PANEL;
-                let mut x = V::fmadd(
-                    V::load(&*line(decay.as_ptr().add(off))),
-                    V::load(&*line(xi.add(off))),
-                    V::load(&*line(vj.add(off))),
-                );
-                if f != 0.0 {
-                    x = V::fmadd(fv, V::load(&*line(g.add(off))), x);
-                }
-                V::store(x, &mut *next.add(off).cast::<[f64; PANEL]>());
-            }
-        }
-    }
-    ctl.fraction[0] = f;
-}
-
-/// [`single_thermostat_steps`] with the `G` panels of the state held in registers (the
-/// same arithmetic in the same order); returns the last fraction.
-///
-/// # Safety
-/// As [`thermostat_steps`], with the shapes checked by the caller and `G` panels of state.
 #[allow(clippy::too_many_arguments)]
 #[inline(always)]
 unsafe fn single_in_registers<V: Lane8, const G: usize>(
@@ -596,8 +491,20 @@ unsafe fn single_in_registers<V: Lane8, const G: usize>(
     b: usize,
     ctl: &mut Control,
     th: &mut Thermostat,
-    mut f: f64,
-) -> f64 {
+) {
+    assert!(
+        ctl.fraction.len() == 1
+            && z.len() >= (b + 1) * G * PANEL
+            && v.len() >= b * G * PANEL
+            && cb.len() >= b * ld_c
+            && ctl.row_state.len() >= G
+            && ctl.gain_lines.len() >= G
+            && decay.len() >= G * PANEL
+            && th.fractions.len() >= k0 + b
+            && th.setpoints.len() >= k0 + b,
+        "thermostat block shapes"
+    );
+    let mut f = ctl.fraction[0];
     let npad = G * PANEL;
     let line = |p: *const f64| p.cast::<[f64; PANEL]>();
     let enabled = th.enabled[0];
@@ -673,7 +580,7 @@ unsafe fn single_in_registers<V: Lane8, const G: usize>(
             }
         }
     }
-    f
+    ctl.fraction[0] = f;
 }
 
 /// The per-run arguments of a thermostat block run.
