@@ -199,23 +199,6 @@ fn tridiagonal_dc(
         tridiagonal_dc(d0, e0, v00, par, leaf)?;
         tridiagonal_dc(d1, e1, v11, par, leaf)?;
     }
-    merge(diag, rho, v, n1, par)
-}
-
-/// Mends a tear: `diag[..n1]`, `diag[n1..]` hold the ascending eigenvalues of the two halves
-/// and `v`'s diagonal blocks their eigenvectors; on return `diag` holds the ascending
-/// eigenvalues of the whole and `v` its eigenvectors. Port of the merge in faer 0.24.4's
-/// `divide_and_conquer_recurse` (deflation, secular equation, Löwner's formula), with
-/// `diag(Q₁, Q₂)·W` formed in place by blocks of rows.
-fn merge(
-    diag: &mut [f64],
-    rho: f64,
-    mut v: MatMut<'_, f64>,
-    n1: usize,
-    par: Par,
-) -> Result<(), SolverError> {
-    let n = diag.len();
-    let eps = f64::EPSILON;
     // z = (last row of Q₁, sign(ρ)·first row of Q₂) / √2, ρ ← 2|ρ|.
     let inv_sqrt2 = 0.5f64.sqrt();
     let z: Vec<f64> = (0..n)
@@ -230,7 +213,27 @@ fn merge(
             zi * inv_sqrt2
         })
         .collect();
-    let rho = rho.abs() * 2.0;
+    merge(diag, z, rho.abs() * 2.0, v, n1, par)
+}
+
+/// Mends a tear, `D + ρ z zᵀ` with `‖z‖ = 1` and `ρ ≥ 0` in the eigenbasis held in `v`:
+/// `diag[..n1]`, `diag[n1..]` hold two ascending lists of eigenvalues and, when `n1 < n`,
+/// `v`'s diagonal blocks the matching eigenvectors (its off-diagonal blocks zero); with
+/// `n1 = n`, one ascending list and a full `v`. On return `diag` holds the ascending
+/// eigenvalues of the whole and `v` its eigenvectors. Port of the merge in faer 0.24.4's
+/// `divide_and_conquer_recurse` (deflation, secular equation, Löwner's formula), with
+/// `V·W` formed in place by blocks of rows; the columns of `W` that deflation left as unit
+/// vectors are copied rather than multiplied.
+pub(crate) fn merge(
+    diag: &mut [f64],
+    z: Vec<f64>,
+    rho: f64,
+    mut v: MatMut<'_, f64>,
+    n1: usize,
+    par: Par,
+) -> Result<(), SolverError> {
+    let n = diag.len();
+    let eps = f64::EPSILON;
     // Merge the two ascending lists.
     let mut pl_before = vec![0usize; n];
     {
@@ -387,31 +390,61 @@ fn merge(
             col[pb] = work[i];
         }
     };
-    // V ← diag(Q₁, Q₂)·W, one half of W's rows at a time, by blocks of rows in place.
+    // V ← diag(Q₁, Q₂)·W (or V·W when n1 = n), one half of W's rows at a time, by blocks of
+    // rows in place. A column of W whose rows in this half are one 1 (a deflated pair kept
+    // as it was) is a copy of a column of V; one with none there is 0 on these rows.
     let mut col = vec![0.0; n];
     let mut work = vec![0.0; n];
     for (r0, rows) in [(0, n1), (n1, n - n1)] {
-        let mut w_half = Mat::<f64>::zeros(rows, n);
+        if rows == 0 {
+            continue;
+        }
+        let mut kinds = Vec::with_capacity(n);
+        let mut w_dense: Vec<f64> = Vec::with_capacity(rows * n);
         for j in 0..n {
             w_column(j, &mut col, &mut work);
-            w_half
-                .col_mut(j)
-                .copy_from(ColMut::from_slice_mut(&mut col[r0..r0 + rows]).rb());
+            let part = &col[r0..r0 + rows];
+            let mut nonzero = part.iter().enumerate().filter(|(_, x)| **x != 0.0);
+            let kind = match (nonzero.next(), nonzero.next()) {
+                (None, _) => Column::Zero,
+                (Some((k, 1.0)), None) => Column::Copy(r0 + k),
+                _ => {
+                    w_dense.extend_from_slice(part);
+                    Column::Product(w_dense.len() / rows - 1)
+                }
+            };
+            kinds.push(kind);
         }
-        let mut tmp = Mat::<f64>::zeros(ROW_BLOCK.min(rows), n);
+        let nd = w_dense.len() / rows;
+        let w_dense = MatRef::from_column_major_slice(&w_dense, rows, nd);
+        let mut product = Mat::<f64>::zeros(ROW_BLOCK.min(rows), nd);
+        let mut assembled = Mat::<f64>::zeros(ROW_BLOCK.min(rows), n);
         let mut b0 = r0;
         while b0 < r0 + rows {
             let b = ROW_BLOCK.min(r0 + rows - b0);
-            let mut t = tmp.as_mut().subrows_mut(0, b);
-            matmul(
-                t.rb_mut(),
-                Accum::Replace,
-                v.rb().submatrix(b0, r0, b, rows),
-                w_half.as_ref(),
-                1.0,
-                par,
-            );
-            v.rb_mut().subrows_mut(b0, b).copy_from(t.rb());
+            let mut t = product.as_mut().subrows_mut(0, b);
+            if nd > 0 {
+                matmul(
+                    t.rb_mut(),
+                    Accum::Replace,
+                    v.rb().submatrix(b0, r0, b, rows),
+                    w_dense,
+                    1.0,
+                    par,
+                );
+            }
+            let mut out = assembled.as_mut().subrows_mut(0, b);
+            for (j, kind) in kinds.iter().enumerate() {
+                match *kind {
+                    Column::Product(k) => out.rb_mut().col_mut(j).copy_from(t.rb().col(k)),
+                    Column::Copy(k) => out
+                        .rb_mut()
+                        .col_mut(j)
+                        .copy_from(v.rb().submatrix(b0, k, b, 1).col(0)),
+                    Column::Zero => out.rb_mut().col_mut(j).fill(0.0),
+                }
+            }
+            v.rb_mut().subrows_mut(b0, b).copy_from(out.rb());
             b0 += b;
         }
     }
@@ -419,6 +452,17 @@ fn merge(
         *d = eigenvals[p];
     }
     Ok(())
+}
+
+/// Where column `j` of the merged eigenvectors comes from, on one half's rows.
+#[derive(Clone, Copy)]
+enum Column {
+    /// Column `k` of `W`'s dense part: a product.
+    Product(usize),
+    /// Column `k` of the old `V` (a deflated pair).
+    Copy(usize),
+    /// Zero on these rows.
+    Zero,
 }
 
 /// `v[:, j] ← v[:, perm[j]]`, in place (cycle by cycle, one column of workspace).
