@@ -49,6 +49,7 @@ use faer::{MatMut, MatRef, Par, Spec};
 use nalgebra::{DMatrix, SymmetricEigen};
 
 use crate::dc::{symmetric_eigen_lean, LEAF};
+use crate::tear::{symmetric_eigen_torn, TEAR_FROM_STATES, TEAR_LEAF};
 use crate::SolverError;
 
 /// From this many states up, faer's blocked divide-and-conquer solver is used (below it,
@@ -81,7 +82,28 @@ fn not_converged() -> SolverError {
 
 /// Eigenvalues `λ` (in no promised order) and orthonormal eigenvectors `V` (columns) of the
 /// symmetric `s`; `s` is consumed so its storage can be released before `V` is used.
+///
+/// From [`TEAR_FROM_STATES`] states up, the network's graph is tried first (`tear.rs`): when
+/// `S` is sparse enough to cut cheaply, its divide and conquer runs on the graph itself and
+/// the dense tridiagonal reduction is skipped.
 pub(crate) fn symmetric_eigen(
+    s: DMatrix<f64>,
+    backend: Backend,
+) -> Result<(Vec<f64>, DMatrix<f64>), SolverError> {
+    if backend == Backend::Faer && s.nrows() >= TEAR_FROM_STATES {
+        return match symmetric_eigen_torn(s, TEAR_LEAF) {
+            Ok(done) => {
+                clear_upper_vector_state();
+                done
+            }
+            Err(s) => dense_eigen(s, backend),
+        };
+    }
+    dense_eigen(s, backend)
+}
+
+/// [`symmetric_eigen`] without looking at the graph: the dense routes only.
+pub(crate) fn dense_eigen(
     s: DMatrix<f64>,
     backend: Backend,
 ) -> Result<(Vec<f64>, DMatrix<f64>), SolverError> {

@@ -61,6 +61,7 @@ mod readout;
 mod steady;
 mod stepper;
 mod system;
+mod tear;
 mod truncation;
 mod work;
 
