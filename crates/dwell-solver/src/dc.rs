@@ -496,10 +496,46 @@ fn permute_columns(mut v: MatMut<'_, f64>, perm: &[usize]) {
     }
 }
 
-/// `1/ρ + Σ zᵢ²/((dᵢ − shift) − μ)` (increasing in μ).
+/// `1/ρ + Σ zᵢ²/((dᵢ − shift) − μ)` (increasing in μ). Summed in eight interleaved
+/// partial sums, so the divisions and additions of neighbouring terms overlap instead of
+/// waiting on one chain of additions, and on 4-lane vectors where the processor has AVX
+/// (the same operations in the same order, so the same result bit for bit). The root
+/// finder evaluates this `O(n)` sum several times per root: it was a sixth of a
+/// 2,000-state decomposition by graph tearing.
 fn secular_eq(shift: f64, mu: f64, d: &[f64], z: &[f64], rho_recip: f64) -> f64 {
-    let mut res = rho_recip;
-    for (&d, &z) in d.iter().zip(z) {
+    #[cfg(target_arch = "x86_64")]
+    {
+        use std::sync::OnceLock;
+        static AVX: OnceLock<bool> = OnceLock::new();
+        if *AVX.get_or_init(|| std::is_x86_feature_detected!("avx")) {
+            // SAFETY: AVX is present (checked just above), which is all the copy needs.
+            return unsafe { secular_eq_avx(shift, mu, d, z, rho_recip) };
+        }
+    }
+    secular_sum(shift, mu, d, z, rho_recip)
+}
+
+/// [`secular_eq`] compiled for AVX.
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx")]
+unsafe fn secular_eq_avx(shift: f64, mu: f64, d: &[f64], z: &[f64], rho_recip: f64) -> f64 {
+    secular_sum(shift, mu, d, z, rho_recip)
+}
+
+#[inline(always)]
+fn secular_sum(shift: f64, mu: f64, d: &[f64], z: &[f64], rho_recip: f64) -> f64 {
+    const L: usize = 8;
+    let mut acc = [0.0f64; L];
+    let (dc, dr) = d.split_at(d.len() - d.len() % L);
+    let (zc, zr) = z[..d.len()].split_at(dc.len());
+    for (d8, z8) in dc.chunks_exact(L).zip(zc.chunks_exact(L)) {
+        for k in 0..L {
+            acc[k] += z8[k] * (z8[k] / ((d8[k] - shift) - mu));
+        }
+    }
+    let mut res = rho_recip
+        + (((acc[0] + acc[1]) + (acc[2] + acc[3])) + ((acc[4] + acc[5]) + (acc[6] + acc[7])));
+    for (&d, &z) in dr.iter().zip(zr) {
         res += z * (z / ((d - shift) - mu));
     }
     res
