@@ -61,7 +61,7 @@
 use nalgebra::DMatrix;
 
 use crate::discretization::validate_step;
-use crate::modal::{modes, step_coefficients};
+use crate::modal::{modes, modes_of, step_coefficients, symmetric_rate_matrix_in_place, Modes};
 use crate::phi::phi0123;
 use crate::{Discretization, InputKind, RcSystem, Readout, SolverError, Stepper};
 
@@ -155,6 +155,33 @@ impl TruncatedModal {
     pub fn new(sys: &RcSystem, step_s: f64, truncation: Truncation) -> Result<Self, SolverError> {
         validate_step(step_s)?;
         let md = modes(sys)?;
+        Self::with_modes(md, sys, step_s, truncation)
+    }
+
+    /// As [`TruncatedModal::new`], taking the system by value so that `S` is formed in
+    /// `K`'s storage instead of beside it (as [`Discretization::from_system`]): the peak
+    /// memory of discretising is one `n × n` matrix lower (32 MB at 2,000 states). Same
+    /// result, bit for bit.
+    ///
+    /// [`Discretization::from_system`]: crate::Discretization::from_system
+    pub fn from_system(
+        mut sys: RcSystem,
+        step_s: f64,
+        truncation: Truncation,
+    ) -> Result<Self, SolverError> {
+        validate_step(step_s)?;
+        let k = std::mem::replace(&mut sys.conductance, DMatrix::zeros(0, 0));
+        let s = symmetric_rate_matrix_in_place(k, &sys.capacitance);
+        let md = modes_of(s, &sys)?;
+        Self::with_modes(md, &sys, step_s, truncation)
+    }
+
+    fn with_modes(
+        md: Modes,
+        sys: &RcSystem,
+        step_s: f64,
+        truncation: Truncation,
+    ) -> Result<Self, SolverError> {
         let (n, m) = (sys.states(), sys.inputs());
         let mut order: Vec<usize> = (0..n).collect();
         order.sort_by(|&a, &b| md.lambda[a].total_cmp(&md.lambda[b]));
@@ -490,5 +517,38 @@ mod tests {
                 );
             }
         }
+    }
+
+    #[test]
+    fn from_system_gives_the_same_numbers_as_new() {
+        // A 60-state chain (faer's path) with two inputs, half its modes dropped: by value and
+        // by reference must agree bit for bit (S is the same numbers in other storage).
+        let n = 60;
+        let mut k = DMatrix::<f64>::zeros(n, n);
+        for i in 0..n - 1 {
+            let g = 2.0 + (i % 7) as f64;
+            k[(i, i)] += g;
+            k[(i + 1, i + 1)] += g;
+            k[(i, i + 1)] -= g;
+            k[(i + 1, i)] -= g;
+        }
+        k[(0, 0)] += 4.0;
+        let mut u = DMatrix::<f64>::zeros(n, 2);
+        u[(0, 0)] = 4.0;
+        u[(n / 2, 1)] = 1.0;
+        let c: Vec<f64> = (0..n).map(|i| 1e5 * (1.0 + (i % 3) as f64)).collect();
+        let kinds = vec![InputKind::Temperature, InputKind::HeatFlow];
+        let sys = RcSystem::new(c, k, u, kinds).unwrap();
+        let by_ref = TruncatedModal::new(&sys, 3600.0, Truncation::new(2.0e4).unwrap()).unwrap();
+        let by_value =
+            TruncatedModal::from_system(sys, 3600.0, Truncation::new(2.0e4).unwrap()).unwrap();
+        assert!(by_ref.kept_modes() > 0 && by_ref.dropped_modes() > 0);
+        assert_eq!(by_ref.kept_modes(), by_value.kept_modes());
+        assert_eq!(by_ref.static_gain(), by_value.static_gain());
+        let (a, b) = (by_ref.discretization(), by_value.discretization());
+        assert_eq!(a.phi(), b.phi());
+        assert_eq!(a.gamma1(), b.gamma1());
+        let x: Vec<f64> = (0..n).map(|i| 10.0 + (i % 4) as f64).collect();
+        assert_eq!(by_ref.modal_state(&x), by_value.modal_state(&x));
     }
 }

@@ -66,7 +66,9 @@ fn main() {
             (st, n)
         }
         Some(s) => {
-            let tm = TruncatedModal::new(&net.system, 3600.0, Truncation::new(s).unwrap()).unwrap();
+            // By value, as the full route (S in K's storage).
+            let tm = TruncatedModal::from_system(net.system, 3600.0, Truncation::new(s).unwrap())
+                .unwrap();
             let t_disc = t1.elapsed();
             let mut st = tm.stepper(&rows, &Readout::empty(n, m)).unwrap();
             st.set_state(&tm.modal_state(&x0));
