@@ -1,6 +1,6 @@
 //! The symmetric eigen-decomposition behind the modal route, `S = V Λ Vᵀ`.
 //!
-//! Two implementations, chosen by size:
+//! Three implementations, chosen by size and sparsity:
 //!
 //! - below [`FAER_FROM_STATES`] states, nalgebra's `SymmetricEigen` (Householder
 //!   tridiagonalisation, then implicit symmetric QR; Golub & Van Loan §8.3): cheapest for
@@ -14,11 +14,18 @@
 //!   is tridiagonalised in its own storage and the top merges of divide and conquer are done
 //!   there without faer's two extra `n × n` matrices (at 2,000 states the decomposition's
 //!   peak fell from `S` + `V` + 97 MB to `S`, then `V` + 32 MB). Up to `dc::LEAF` (512)
-//!   states the numbers are faer's `self_adjoint_evd`'s, bit for bit (tested).
+//!   states the numbers are faer's `self_adjoint_evd`'s, bit for bit (tested);
+//! - from [`TEAR_FROM_STATES`] states up, when `S` is sparse and its graph has cheap cuts
+//!   (rooms joined by a few walls), divide and conquer on the graph itself (`tear.rs`): the
+//!   couplings across each cut are exact rank-one terms merged back as in `dc.rs`, with no
+//!   tridiagonal reduction and no back-transformation (the synthetic 200-zone building:
+//!   0.50 s against 1.6–1.9 s, docs/performance.md). Where no cut beats the dense route, the
+//!   dense route runs.
 //!
-//! Both are backward stable: the computed pairs are exact for some `S + E` with
+//! All are backward stable: the computed pairs are exact for some `S + E` with
 //! `‖E‖ = O(ε‖S‖)`, so each eigenvalue is within `O(ε‖S‖)` of the exact one (Weyl) and the
-//! eigenvectors are orthonormal to `O(nε)`. The two are cross-checked in the tests below.
+//! eigenvectors are orthonormal to `O(nε)`. They are cross-checked in the tests below and
+//! in `tear.rs`.
 //!
 //! faer runs **sequentially** here (`Par::Seq`): the modal route is one `O(n³)` call per
 //! discretisation, studies already run discretisations in parallel (one per variant on
