@@ -3,7 +3,7 @@
 use std::collections::BTreeMap;
 
 use dwell_solver::{InputKind, RcSystem};
-use nalgebra::{DMatrix, DVector, SymmetricEigen};
+use nalgebra::DVector;
 use serde::Serialize;
 
 /// How an input varies between samples.
@@ -138,20 +138,10 @@ impl Network {
     }
 
     /// Time constants (s) of the network, `1/λ` for the eigenvalues `λ` of
-    /// `S = C^{-1/2} K C^{-1/2}`, longest first; a zero eigenvalue gives `f64::INFINITY`.
+    /// `S = C^{-1/2} K C^{-1/2}`, longest first; a zero eigenvalue gives `f64::INFINITY`
+    /// (eigenvalues only, [`dwell_solver::RcSystem::time_constants_s`]).
     pub fn time_constants_s(&self) -> Vec<f64> {
-        let c = &self.system.capacitance;
-        let n = c.len();
-        let k = &self.system.conductance;
-        let s = DMatrix::from_fn(n, n, |i, j| k[(i, j)] / (c[i] * c[j]).sqrt());
-        let eig = SymmetricEigen::new(s);
-        let mut tau: Vec<f64> = eig
-            .eigenvalues
-            .iter()
-            .map(|&l| if l > 1e-300 { 1.0 / l } else { f64::INFINITY })
-            .collect();
-        tau.sort_by(|a, b| b.partial_cmp(a).unwrap_or(std::cmp::Ordering::Equal));
-        tau
+        self.system.time_constants_s()
     }
 
     /// Steady state `x = K⁻¹ U u` for constant inputs; `None` if `K` is singular.

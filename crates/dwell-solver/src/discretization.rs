@@ -339,13 +339,18 @@ impl Discretization {
             ),
             Spectrum::General(a) => clamp_rates(a.complex_eigenvalues().iter().map(|z| -z.re), n),
         };
-        let mut tau: Vec<f64> = rates
-            .iter()
-            .map(|&l| if l > 0.0 { 1.0 / l } else { f64::INFINITY })
-            .collect();
-        tau.sort_by(|a, b| b.total_cmp(a));
-        tau
+        time_constants_from_rates(&rates)
     }
+}
+
+/// `τ_i = 1/λ_i` (s), longest first; `f64::INFINITY` for `λ = 0`.
+pub(crate) fn time_constants_from_rates(rates: &[f64]) -> Vec<f64> {
+    let mut tau: Vec<f64> = rates
+        .iter()
+        .map(|&l| if l > 0.0 { 1.0 / l } else { f64::INFINITY })
+        .collect();
+    tau.sort_by(|a, b| b.total_cmp(a));
+    tau
 }
 
 #[cfg(test)]
@@ -378,5 +383,46 @@ mod tests {
         assert_eq!(by_ref.gamma1(), by_value.gamma1());
         assert_eq!(by_ref.mean_gamma0(), by_value.mean_gamma0());
         assert_eq!(by_ref.time_constants_s(), by_value.time_constants_s());
+    }
+
+    #[test]
+    fn the_systems_time_constants_are_the_modal_routes() {
+        // Eigenvalues only (`RcSystem::time_constants_s`) against the modal route's full
+        // decomposition, on both backends (20 states: nalgebra; 60: faer): the same
+        // eigenvalues to rounding (both backward stable, Golub & Van Loan §8.1), asked 1e-10
+        // relative. The last 4 states form a floating part (no boundary): τ = ∞ in both.
+        for n in [20, 60] {
+            let mut k = DMatrix::<f64>::zeros(n, n);
+            let mut link = |a: usize, b: usize, g: f64| {
+                k[(a, a)] += g;
+                k[(b, b)] += g;
+                k[(a, b)] -= g;
+                k[(b, a)] -= g;
+            };
+            for i in 0..n - 5 {
+                link(i, i + 1, 2.0 + (i % 7) as f64);
+            }
+            for i in n - 4..n - 1 {
+                link(i, i + 1, 3.0);
+            }
+            k[(0, 0)] += 4.0;
+            let mut u = DMatrix::<f64>::zeros(n, 1);
+            u[(0, 0)] = 4.0;
+            let c: Vec<f64> = (0..n).map(|i| 1e5 * (1.0 + (i % 3) as f64)).collect();
+            let sys = RcSystem::new(c, k, u, vec![InputKind::Temperature]).unwrap();
+            let only = sys.time_constants_s();
+            let full = Discretization::new(&sys, 3600.0, Route::Modal)
+                .unwrap()
+                .time_constants_s();
+            assert_eq!(only.len(), n);
+            assert!(
+                only[0].is_infinite() && full[0].is_infinite(),
+                "n={n}: {only:?}"
+            );
+            assert!(only[1].is_finite(), "n={n}: one zero eigenvalue only");
+            for (a, b) in only.iter().zip(&full).skip(1) {
+                assert!((a - b).abs() <= 1e-10 * b, "n={n}: {a} vs {b}");
+            }
+        }
     }
 }

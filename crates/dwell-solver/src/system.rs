@@ -58,6 +58,19 @@ impl RcSystem {
         Ok(sys)
     }
 
+    /// The time constants `τ_i = 1/λ_i` (s) of the network, longest first, from the
+    /// eigenvalues `λ` of `S = C^{-1/2} K C^{-1/2}` (eigenvalues only, no eigenvectors:
+    /// nalgebra below 48 states, faer from 48 up, as the modal route). Eigenvalues below
+    /// `4nε·λ_max` count as 0 (as in the modal route) and give `f64::INFINITY`: a part of the
+    /// network with no path to a boundary.
+    pub fn time_constants_s(&self) -> Vec<f64> {
+        let n = self.states();
+        let s = crate::modal::symmetric_rate_matrix(self);
+        let raw = crate::eigen::symmetric_eigenvalues(&s, crate::eigen::Backend::for_states(n));
+        let rates = crate::modal::clamp_rates(raw.into_iter(), n);
+        crate::discretization::time_constants_from_rates(&rates)
+    }
+
     /// Number of states `n`.
     pub fn states(&self) -> usize {
         self.capacitance.len()
