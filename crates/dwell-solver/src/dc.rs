@@ -791,6 +791,7 @@ fn secant(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::testnets::link;
 
     /// `S = C^{-1/2} K C^{-1/2}` of `copies` identical rooms (a path of `len` nodes each,
     /// capacitances over 3 decades) joined in a row by weak links: clusters of nearly equal
@@ -801,18 +802,12 @@ mod tests {
             .map(|i| 10f64.powf(4.0 + 3.0 * ((i % len) * 7 % len) as f64 / len as f64))
             .collect();
         let mut k = DMatrix::<f64>::zeros(n, n);
-        let mut link = |a: usize, b: usize, g: f64| {
-            k[(a, a)] += g;
-            k[(b, b)] += g;
-            k[(a, b)] -= g;
-            k[(b, a)] -= g;
-        };
         for r in 0..copies {
             for i in 0..len - 1 {
-                link(r * len + i, r * len + i + 1, 1.0 + (i % 5) as f64);
+                link(&mut k, r * len + i, r * len + i + 1, 1.0 + (i % 5) as f64);
             }
             if r + 1 < copies && weak > 0.0 {
-                link(r * len, (r + 1) * len, weak);
+                link(&mut k, r * len, (r + 1) * len, weak);
             }
         }
         for r in 0..copies {

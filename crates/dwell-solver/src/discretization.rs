@@ -356,27 +356,14 @@ pub(crate) fn time_constants_from_rates(rates: &[f64]) -> Vec<f64> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::testnets::link;
 
     #[test]
     fn from_system_gives_the_same_numbers_as_new() {
         // A 60-state chain (faer's path) with two inputs: by value and by reference must agree
         // bit for bit (S is the same numbers, only its storage differs).
         let n = 60;
-        let mut k = DMatrix::<f64>::zeros(n, n);
-        for i in 0..n - 1 {
-            let g = 2.0 + (i % 7) as f64;
-            k[(i, i)] += g;
-            k[(i + 1, i + 1)] += g;
-            k[(i, i + 1)] -= g;
-            k[(i + 1, i)] -= g;
-        }
-        k[(0, 0)] += 4.0;
-        let mut u = DMatrix::<f64>::zeros(n, 2);
-        u[(0, 0)] = 4.0;
-        u[(n / 2, 1)] = 1.0;
-        let c: Vec<f64> = (0..n).map(|i| 1e5 * (1.0 + (i % 3) as f64)).collect();
-        let kinds = vec![InputKind::Temperature, InputKind::HeatFlow];
-        let sys = RcSystem::new(c, k, u, kinds).unwrap();
+        let sys = crate::testnets::chain_system(n);
         let by_ref = Discretization::new(&sys, 3600.0, Route::Modal).unwrap();
         let by_value = Discretization::from_system(sys, 3600.0, Route::Modal).unwrap();
         assert_eq!(by_ref.phi(), by_value.phi());
@@ -393,17 +380,11 @@ mod tests {
         // relative. The last 4 states form a floating part (no boundary): τ = ∞ in both.
         for n in [20, 60] {
             let mut k = DMatrix::<f64>::zeros(n, n);
-            let mut link = |a: usize, b: usize, g: f64| {
-                k[(a, a)] += g;
-                k[(b, b)] += g;
-                k[(a, b)] -= g;
-                k[(b, a)] -= g;
-            };
             for i in 0..n - 5 {
-                link(i, i + 1, 2.0 + (i % 7) as f64);
+                link(&mut k, i, i + 1, 2.0 + (i % 7) as f64);
             }
             for i in n - 4..n - 1 {
-                link(i, i + 1, 3.0);
+                link(&mut k, i, i + 1, 3.0);
             }
             k[(0, 0)] += 4.0;
             let mut u = DMatrix::<f64>::zeros(n, 1);

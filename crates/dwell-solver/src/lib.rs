@@ -62,6 +62,8 @@ mod steady;
 mod stepper;
 mod system;
 mod tear;
+#[cfg(test)]
+mod testnets;
 mod truncation;
 mod work;
 

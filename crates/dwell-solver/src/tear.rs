@@ -487,6 +487,7 @@ pub(crate) fn symmetric_eigen_torn(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::testnets::link;
 
     /// `S = C^{-1/2} K C^{-1/2}` of an INVENTED grid of `rows × cols` rooms, each a chain of
     /// `len` states (capacitances over 3 decades), the first state of each room linked to its
@@ -514,22 +515,26 @@ mod tests {
             })
             .collect();
         let mut k = DMatrix::<f64>::zeros(n, n);
-        let mut link = |a: usize, b: usize, g: f64| {
-            k[(a, a)] += g;
-            k[(b, b)] += g;
-            k[(a, b)] -= g;
-            k[(b, a)] -= g;
-        };
         for room in 0..rooms {
             for i in 0..len - 1 {
-                link(room * len + i, room * len + i + 1, 1.0 + (i % 5) as f64);
+                link(
+                    &mut k,
+                    room * len + i,
+                    room * len + i + 1,
+                    1.0 + (i % 5) as f64,
+                );
             }
             let (r, col) = (room / cols, room % cols);
             if col + 1 < cols && weak > 0.0 {
-                link(room * len, (room + 1) * len, weak);
+                link(&mut k, room * len, (room + 1) * len, weak);
             }
             if r + 1 < rows && weak > 0.0 {
-                link(room * len + len / 2, (room + cols) * len + len / 2, weak);
+                link(
+                    &mut k,
+                    room * len + len / 2,
+                    (room + cols) * len + len / 2,
+                    weak,
+                );
             }
         }
         for room in 0..rooms {
@@ -635,19 +640,13 @@ mod tests {
         let (len, rooms) = (10, 2);
         let n = len * rooms;
         let mut k = DMatrix::<f64>::zeros(n, n);
-        let mut link = |a: usize, b: usize, g: f64| {
-            k[(a, a)] += g;
-            k[(b, b)] += g;
-            k[(a, b)] -= g;
-            k[(b, a)] -= g;
-        };
         for room in 0..rooms {
             for i in 0..len - 1 {
-                link(room * len + i, room * len + i + 1, 1.0 + i as f64);
+                link(&mut k, room * len + i, room * len + i + 1, 1.0 + i as f64);
             }
         }
         for b in 0..5 {
-            link(len - 1, len + 2 * b, 0.7);
+            link(&mut k, len - 1, len + 2 * b, 0.7);
         }
         for room in 0..rooms {
             k[(room * len, room * len)] += 0.3;
@@ -708,12 +707,6 @@ mod tests {
         }
         let n = *start.last().unwrap();
         let mut k = DMatrix::<f64>::zeros(n, n);
-        let link = |k: &mut DMatrix<f64>, a: usize, b: usize, g: f64| {
-            k[(a, a)] += g;
-            k[(b, b)] += g;
-            k[(a, b)] -= g;
-            k[(b, a)] -= g;
-        };
         let pick = |room: usize, u: f64| {
             start[room] + (u * (start[room + 1] - start[room]) as f64) as usize
         };

@@ -524,21 +524,7 @@ mod tests {
         // A 60-state chain (faer's path) with two inputs, half its modes dropped: by value and
         // by reference must agree bit for bit (S is the same numbers in other storage).
         let n = 60;
-        let mut k = DMatrix::<f64>::zeros(n, n);
-        for i in 0..n - 1 {
-            let g = 2.0 + (i % 7) as f64;
-            k[(i, i)] += g;
-            k[(i + 1, i + 1)] += g;
-            k[(i, i + 1)] -= g;
-            k[(i + 1, i)] -= g;
-        }
-        k[(0, 0)] += 4.0;
-        let mut u = DMatrix::<f64>::zeros(n, 2);
-        u[(0, 0)] = 4.0;
-        u[(n / 2, 1)] = 1.0;
-        let c: Vec<f64> = (0..n).map(|i| 1e5 * (1.0 + (i % 3) as f64)).collect();
-        let kinds = vec![InputKind::Temperature, InputKind::HeatFlow];
-        let sys = RcSystem::new(c, k, u, kinds).unwrap();
+        let sys = crate::testnets::chain_system(n);
         let by_ref = TruncatedModal::new(&sys, 3600.0, Truncation::new(2.0e4).unwrap()).unwrap();
         let by_value =
             TruncatedModal::from_system(sys, 3600.0, Truncation::new(2.0e4).unwrap()).unwrap();
