@@ -18,15 +18,18 @@
 //! first with the halves' block-diagonal eigenvectors, later ones with the merged full
 //! ones. This is Cuppen's tear generalised from a tridiagonal matrix to a graph; with one
 //! coupling across each cut (rooms in a row), the work is that of the merges alone
-//! (`≈ n³` multiply-adds at the top), where the dense route also pays the tridiagonal
-//! reduction and the back-transformation (about 8 `n³` all told, measured).
+//! (`≈ n³` flops at the top), where the dense route also pays the tridiagonal reduction and
+//! the back-transformation (about `8 n³` flops all told, measured). Each further term of a
+//! cut costs a product with the full eigenvectors (`2 n³`), so cuts through several walls
+//! save less (docs/performance.md: a terrace with two party walls a cut saved 13 %).
 //!
-//! The cut is chosen from a breadth-first ordering of each block (from a pseudo-peripheral
-//! state, one connected component after another, so disconnected parts split for free):
-//! every position of the ordering between a tenth and nine tenths is scored by the
-//! estimated multiply-adds of the merges it needs plus a dense decomposition of both sides,
-//! and the cheapest is taken if it beats decomposing the block densely. A block with no
-//! such cut, or at most [`TEAR_LEAF`] states, is decomposed densely (`eigen.rs`).
+//! The cut is chosen from the order in which a greedy growth adds the block's states (from a
+//! pseudo-peripheral state, one connected component after another, so disconnected parts
+//! split for free; [`Tearing::order`]): every prefix between a tenth and nine tenths of the
+//! block is scored by the estimated flops of the merges it needs plus a dense decomposition
+//! of both sides, and the cheapest is taken if it beats decomposing the block densely. A
+//! block with no such cut, or at most [`TEAR_LEAF`] states, is decomposed densely
+//! (`eigen.rs`).
 //!
 //! The result is exact up to rounding, like the dense route: each merge is backward stable
 //! (Gu & Eisenstat), and the tears are identities, not approximations.
@@ -56,9 +59,9 @@ pub(crate) const TEAR_FROM_STATES: usize = 200;
 /// Blocks of at most this many states are decomposed densely.
 pub(crate) const TEAR_LEAF: usize = 64;
 
-/// Multiply-adds of the dense route per `m³` (tridiagonal reduction, divide and conquer,
-/// back-transformation; 1.5–1.6 s at 2,000 states on the development machines, whose
-/// blocked products run at about 40 Gflop/s: `≈ 8 m³` flops).
+/// Flops of the dense route per `m³` (tridiagonal reduction, divide and conquer,
+/// back-transformation: 1.5–1.6 s at 2,000 states on the development machines, whose
+/// blocked products run at about 40 Gflop/s, is `≈ 8 m³` flops at that rate).
 const DENSE_FLOPS: f64 = 8.0;
 
 /// A graph's rows hold at most this many couplings on average for tearing to be tried.
