@@ -64,6 +64,13 @@ pub(crate) const TEAR_LEAF: usize = 64;
 /// blocked products run at about 40 Gflop/s, is `≈ 8 m³` flops at that rate).
 const DENSE_FLOPS: f64 = 8.0;
 
+/// What a merge costs against the flops of its products: the secular equation, the merge
+/// matrix's columns and the copies come on top. Measured against [`DENSE_FLOPS`]' rate
+/// (2026-12-02): 1.6 for the synthetic 200-zone building (one term a cut: 0.50 s against a
+/// model of 1.4 `n³`), 1.7 for a terrace of 12 houses (two terms a cut, 1,004 states:
+/// 0.165 s against 4.1 `n³`). With it, a cut of three terms loses to the dense route.
+const MERGE_OVERHEAD: f64 = 1.65;
+
 /// A graph's rows hold at most this many couplings on average for tearing to be tried.
 const MAX_MEAN_DEGREE: usize = 48;
 
@@ -132,14 +139,15 @@ fn dense_cost(m: usize) -> f64 {
 
 /// Estimated flops of mending a cut of `n1 + n2` states with `r` rank-one terms: the first
 /// multiplies the halves' block-diagonal eigenvectors by the merge matrix
-/// (`2(n1² + n2²)n`), each later one the full `n × n` eigenvectors (`2n³`).
+/// (`2(n1² + n2²)n`), each later one the full `n × n` eigenvectors (`2n³`); times
+/// [`MERGE_OVERHEAD`].
 fn merge_cost(n1: usize, n2: usize, r: usize) -> f64 {
     if r == 0 {
         return 0.0;
     }
     let (a, b) = (n1 as f64, n2 as f64);
     let n = a + b;
-    2.0 * (a * a + b * b) * n + (r - 1) as f64 * 2.0 * n * n * n
+    MERGE_OVERHEAD * (2.0 * (a * a + b * b) * n + (r - 1) as f64 * 2.0 * n * n * n)
 }
 
 /// A chosen cut of a block: its states in their new order (the first `n1` form one side),
