@@ -172,7 +172,14 @@ pub fn zone_steady_conductance(house: &House) -> Option<Vec<f64>> {
         let rhs = nalgebra::DVector::from_fn(free.len(), |a, _| {
             -fixed.iter().map(|&j| k[(free[a], j)]).sum::<f64>()
         });
-        let sol = kff.lu().solve(&rhs)?;
+        // K_ff is symmetric positive definite when every free node reaches a boundary or a
+        // zone's air: Cholesky (blocked) from CHOLESKY_FROM unknowns, where nalgebra's
+        // unblocked LU took 1.5 s at 2,000 states (docs/performance.md); LU below.
+        let sol: Vec<f64> = if free.len() >= dwell_solver::CHOLESKY_FROM {
+            dwell_solver::cholesky_solve(kff, rhs.as_slice())?
+        } else {
+            kff.lu().solve(&rhs)?.as_slice().to_vec()
+        };
         for (a, &i) in free.iter().enumerate() {
             x[i] = sol[a];
         }

@@ -73,7 +73,7 @@ pub use error::SolverError;
 pub use expm::expm;
 pub use onoff::OnOffThermostat;
 pub use readout::Readout;
-pub use steady::steady_state;
+pub use steady::{cholesky_solve, steady_state, CHOLESKY_FROM};
 pub use stepper::{Stepper, RUN_BLOCK};
 pub use system::{InputKind, RcSystem};
 pub use truncation::{ErrorBound, TruncatedModal, Truncation};
