@@ -503,14 +503,11 @@ fn permute_columns(mut v: MatMut<'_, f64>, perm: &[usize]) {
 /// finder evaluates this `O(n)` sum several times per root: it was a sixth of a
 /// 2,000-state decomposition by graph tearing.
 fn secular_eq(shift: f64, mu: f64, d: &[f64], z: &[f64], rho_recip: f64) -> f64 {
+    // std caches the feature test (one atomic load), as `eigen.rs` relies on too.
     #[cfg(target_arch = "x86_64")]
-    {
-        use std::sync::OnceLock;
-        static AVX: OnceLock<bool> = OnceLock::new();
-        if *AVX.get_or_init(|| std::is_x86_feature_detected!("avx")) {
-            // SAFETY: AVX is present (checked just above), which is all the copy needs.
-            return unsafe { secular_eq_avx(shift, mu, d, z, rho_recip) };
-        }
+    if std::is_x86_feature_detected!("avx") {
+        // SAFETY: AVX is present (checked just above), which is all the copy needs.
+        return unsafe { secular_eq_avx(shift, mu, d, z, rho_recip) };
     }
     secular_sum(shift, mu, d, z, rho_recip)
 }
